@@ -1,0 +1,214 @@
+"""Batched chemical-equilibrium solver in the extents of independent reactions.
+
+For reactions j with stoichiometric coefficients nu_ji, the equilibrium extents xi_j satisfy
+
+.. math::  \\ln K_j(T) = \\sum_i \\nu_{ji} \\ln\\left(\\frac{y_i \\phi_i P}{P^\\circ}\\right),
+           \\qquad n_i = n_{i,0} + \\sum_j \\nu_{ji} \\xi_j
+
+(Smith, Van Ness & Abbott, Introduction to Chemical Engineering Thermodynamics, 7th ed., ch. 13).
+The fugacity coefficients phi_i come from a model of :mod:`teakit.thermo.fugacity` and are
+updated every iteration (lagged in the Jacobian, which is that of the ideal-gas mixture).
+
+One reaction: a safeguarded Newton iteration on the logistic transform of the extent between its
+bounds, with a bracket and bisection fall-back, so every member converges. Several reactions: a
+damped Newton iteration from an interior starting point (a small linear programme per distinct
+feed), steps cut back to stay inside the composition polytope. Iterations are bounded; members
+that do not converge raise :class:`~teakit.errors.ConvergenceError` naming them.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from teakit.errors import ConvergenceError, InputError
+
+__all__ = ["solve_extents"]
+
+MAX_ITER = 200
+TOL = 1e-11
+_TINY = 1e-300
+
+
+def _sigmoid(u):
+    return 0.5 * (1.0 + np.tanh(0.5 * u))
+
+
+def _single(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
+    """One reaction: nu (ns,), n0 (B, ns), lnK (B,), lnP (B,) = ln(P/P0). Returns xi (B,)."""
+    pos, neg = nu > 0, nu < 0
+    with np.errstate(divide="ignore"):
+        lo = np.max(np.where(pos, -n0 / np.where(pos, nu, 1.0), -np.inf), axis=-1)
+        hi = np.min(np.where(neg, n0 / np.where(neg, -nu, 1.0), np.inf), axis=-1)
+    lo = np.where(np.isfinite(lo), lo, 0.0)  # no product at all in the feed: xi >= 0
+    hi = np.where(np.isfinite(hi), hi, 0.0)
+    D = hi - lo
+    scale = n0.sum(axis=-1)
+    degenerate = D <= 1e-14 * scale
+    if degenerate.any():
+        k = int(np.flatnonzero(degenerate)[0])
+        raise InputError(
+            "feed has no reactant and no product the reaction can use: the reaction can proceed "
+            f"neither forward nor backward (batch member {k}, feed {n0[k].tolist()})"
+        )
+    base_hi = np.maximum(n0 + nu * hi[:, None], 0.0)  # species limiting at xi = hi are exactly 0
+    base_lo = np.maximum(n0 + nu * lo[:, None], 0.0)
+    dnu = nu.sum()
+
+    def evaluate(u_sub, idx):
+        """Residual, its derivative in u, and the amounts, for the members ``idx``."""
+        s, sm = _sigmoid(u_sub), _sigmoid(-u_sub)
+        Di = D[idx]
+        n = np.where(
+            neg,
+            base_hi[idx] - nu * (Di * sm)[:, None],
+            np.where(pos, base_lo[idx] + nu * (Di * s)[:, None], n0[idx]),
+        )
+        n = np.maximum(n, _TINY)
+        nt = n.sum(axis=-1)
+        lnphi = lnphi_fn(T[idx], P[idx], n / nt[:, None])
+        f = lnK[idx] - (nu * (np.log(n) + lnphi)).sum(axis=-1) + dnu * (np.log(nt) - lnP[idx])
+        dfdxi = -((nu**2 / n).sum(axis=-1) - dnu**2 / nt)
+        return f, dfdxi * Di * s * sm, n
+
+    u = np.zeros(lo.shape)
+    u_lo = np.full(lo.shape, -np.inf)
+    u_hi = np.full(lo.shape, np.inf)
+    active = np.ones(lo.shape, dtype=bool)
+    f = np.zeros(lo.shape)
+    for _it in range(max_iter):
+        idx = np.flatnonzero(active)
+        if idx.size == 0:
+            break
+        ua = u[idx]
+        fa, dfa, _ = evaluate(ua, idx)
+        f[idx] = fa
+        done = np.abs(fa) < tol
+        # Keep a bracket: the residual decreases with the extent, hence with u.
+        u_lo[idx] = np.where(fa > 0, ua, u_lo[idx])
+        u_hi[idx] = np.where(fa <= 0, ua, u_hi[idx])
+        lo_b, hi_b = u_lo[idx], u_hi[idx]
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            u_new = ua + np.clip(-fa / np.where(dfa < 0, dfa, -_TINY), -10.0, 10.0)
+        both = np.isfinite(lo_b) & np.isfinite(hi_b)
+        outside = (u_new <= lo_b) | (u_new >= hi_b) | ~np.isfinite(u_new)
+        bisect = np.where(
+            both, 0.5 * (lo_b + hi_b), np.where(np.isfinite(lo_b), lo_b + 10.0, hi_b - 10.0)
+        )
+        u_new = np.where(outside, bisect, u_new)
+        narrow = both & (hi_b - lo_b < 1e-13 * np.maximum(1.0, np.abs(lo_b)))
+        u[idx] = np.where(done, ua, u_new)
+        active[idx] = ~(done | narrow)
+    idx = np.flatnonzero(active)
+    if idx.size:
+        raise ConvergenceError(
+            "single-reaction equilibrium did not converge (residual: ln K - ln Q)",
+            members=idx,
+            residuals=f[idx],
+            iterations=max_iter,
+        )
+    everyone = np.arange(u.size)
+    f, _, n = evaluate(u, everyone)
+    bad = np.abs(f) > 1e3 * tol
+    if bad.any():
+        k = np.flatnonzero(bad)
+        raise ConvergenceError(
+            "single-reaction equilibrium stalled at a composition bound (residual: ln K - ln Q)",
+            members=k,
+            residuals=f[k],
+            iterations=max_iter,
+        )
+    return n
+
+
+def _interior_start(nu, n0_unique):
+    """An extent vector with every species amount > 0, per distinct feed (linear programme)."""
+    from scipy.optimize import linprog
+
+    R, ns = nu.shape
+    starts = np.zeros((n0_unique.shape[0], R))
+    for k, n0 in enumerate(n0_unique):
+        # maximise t subject to n0 + nu^T xi >= t for species that take part, t <= mean(n0)
+        involved = np.any(nu != 0, axis=0)
+        A = np.hstack([-nu.T[involved], np.ones((involved.sum(), 1))])
+        b = n0[involved]
+        c = np.zeros(R + 1)
+        c[-1] = -1.0
+        bounds = [(None, None)] * R + [(None, n0.sum() / ns)]
+        res = linprog(c, A_ub=A, b_ub=b, bounds=bounds, method="highs")
+        if not res.success or res.x[-1] <= 1e-12 * n0.sum():
+            raise InputError(
+                "feed admits no composition in which every species of the reactions is present: "
+                "some species cannot form from this feed with these reactions "
+                f"(feed {n0.tolist()})"
+            )
+        # back off halfway towards the analytic centre-ish point
+        starts[k] = 0.5 * res.x[:R]
+    return starts
+
+
+def _multi(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
+    R = nu.shape[0]
+    uniq, inverse = np.unique(n0, axis=0, return_inverse=True)
+    xi = _interior_start(nu, uniq)[inverse.ravel()]
+    dnu = nu.sum(axis=1)
+    active = np.ones(n0.shape[0], dtype=bool)
+    F = np.zeros((n0.shape[0], R))
+    for _it in range(max_iter):
+        idx = np.flatnonzero(active)
+        if idx.size == 0:
+            break
+        n = n0[idx] + xi[idx] @ nu
+        n = np.maximum(n, _TINY)
+        nt = n.sum(axis=-1)
+        y = n / nt[:, None]
+        lnphi = lnphi_fn(T[idx], P[idx], y)
+        mu = np.log(y) + lnphi + lnP[idx][:, None]
+        Fi = lnK[idx] - mu @ nu.T
+        F[idx] = Fi
+        done = np.max(np.abs(Fi), axis=-1) < tol
+        H = np.einsum("ji,ki,bi->bjk", nu, nu, 1.0 / n) - dnu[None, :, None] * dnu[None, None, :] / nt[:, None, None]
+        step = np.linalg.solve(H, Fi[..., None])[..., 0]
+        dn = step @ nu
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratio = np.where(dn < 0, n / -dn, np.inf)
+        alpha = np.minimum(1.0, 0.95 * ratio.min(axis=-1))
+        xi[idx] = xi[idx] + np.where(done, 0.0, alpha)[:, None] * step
+        active[idx] = ~done
+    else:
+        idx = np.flatnonzero(active)
+        if idx.size:
+            raise ConvergenceError(
+                "multi-reaction equilibrium did not converge (residual: max |ln K - ln Q|)",
+                members=idx,
+                residuals=np.max(np.abs(F[idx]), axis=-1),
+                iterations=max_iter,
+            )
+    return np.maximum(n0 + xi @ nu, 0.0)
+
+
+def solve_extents(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter=MAX_ITER, tol=TOL):
+    """Equilibrium amounts for a flat batch.
+
+    Parameters
+    ----------
+    nu : ndarray (R, ns)
+        Stoichiometric coefficients [-].
+    n0 : ndarray (B, ns)
+        Feed amounts [mol] (any consistent amount unit).
+    lnK : ndarray (B, R)
+        ln of the equilibrium constants at each member's T [-].
+    lnP : ndarray (B,)
+        ln(P / P_REF) [-].
+    lnphi_fn : callable
+        ``lnphi(T, P, y)`` of :mod:`teakit.thermo.fugacity`.
+    T, P : ndarray (B,)
+        Temperature [K] and pressure [Pa].
+
+    Returns
+    -------
+    ndarray (B, ns)
+        Equilibrium amounts [mol].
+    """
+    if nu.shape[0] == 1:
+        return _single(nu[0], n0, lnK[:, 0], lnP, lnphi_fn, T, P, max_iter, tol)
+    return _multi(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol)

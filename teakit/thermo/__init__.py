@@ -1,0 +1,38 @@
+"""Thermodynamics: species data, ideal-gas properties, Peng-Robinson, fugacity models."""
+
+from teakit.thermo.ideal_gas import (
+    cp,
+    enthalpy,
+    entropy,
+    gibbs,
+    mixture_cp,
+    mixture_enthalpy,
+    mixture_entropy,
+)
+from teakit.thermo.peng_robinson import (
+    compressibility,
+    fugacity_coefficients,
+    kij_matrix,
+    residual_enthalpy,
+)
+from teakit.thermo.species import P_REF, T_REF, R, SpeciesSet, known_species, species_set
+
+__all__ = [
+    "P_REF",
+    "T_REF",
+    "R",
+    "SpeciesSet",
+    "compressibility",
+    "cp",
+    "enthalpy",
+    "entropy",
+    "fugacity_coefficients",
+    "gibbs",
+    "kij_matrix",
+    "known_species",
+    "mixture_cp",
+    "mixture_enthalpy",
+    "mixture_entropy",
+    "residual_enthalpy",
+    "species_set",
+]

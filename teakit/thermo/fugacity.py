@@ -1,0 +1,127 @@
+"""Fugacity-coefficient models used for reaction equilibrium: one registry, one call shape.
+
+Each model is a function ``lnphi(T, P, y) -> ndarray (..., nc)`` built for an ordered species set
+by :func:`fugacity_model`. Models:
+
+``"ideal"``
+    phi = 1.
+``"peng-robinson"``
+    Peng-Robinson mixture fugacity coefficients (:mod:`teakit.thermo.peng_robinson`), vapour root,
+    k_ij from ``data/pr_kij.csv`` (zero for NH3 pairs) and the quantum-corrected H2 constants.
+``"dyson-simon"``
+    Pure-gas fugacity-coefficient fits for N2, H2 and NH3 used by Dyson & Simon, Ind. Eng. Chem.
+    Fundam. 7, 605 (1968) (after Cooper, Hydrocarbon Process. 46(2), 159, 1967), combined by the
+    Lewis-Randall rule; any other species (Ar, CH4) takes its Peng-Robinson mixture value. The fits
+    were made for about 150-300 atm and 600-800 K; below about 50 atm they drift from the real
+    values (phi of N2 about 1.02 at 10 atm instead of 1.00), which matters little there because
+    the gas is nearly ideal.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from teakit.errors import InputError
+from teakit.thermo.peng_robinson import kij_matrix, pr_state
+from teakit.thermo.species import SpeciesSet
+
+__all__ = ["MODELS", "dyson_simon_phi", "fugacity_model"]
+
+ATM = 101325.0
+MODELS = ("ideal", "peng-robinson", "dyson-simon")
+
+
+def dyson_simon_phi(T, P):
+    """Fugacity coefficients of pure N2, H2 and NH3 from the fits used by Dyson & Simon (1968).
+
+    .. math::
+
+        \\phi_{N_2} &= 0.93431737 + 0.3101804\\times10^{-3} T + 0.295896\\times10^{-3} P
+                       - 0.2707279\\times10^{-6} T^2 + 0.4775207\\times10^{-6} P^2 \\\\
+        \\phi_{H_2} &= \\exp\\{e^{-3.8402 T^{0.125} + 0.541} P - e^{-0.1263 T^{0.5} - 15.980} P^2
+                       + 300\\, e^{-0.011901 T - 5.941} (e^{-P/300} - 1)\\} \\\\
+        \\phi_{NH_3} &= 0.1438996 + 0.2028538\\times10^{-2} T - 0.4487672\\times10^{-3} P
+                       - 0.1142945\\times10^{-5} T^2 + 0.2761216\\times10^{-6} P^2
+
+    with T in K and P in atm.
+
+    Parameters
+    ----------
+    T : array_like
+        Temperature [K].
+    P : array_like
+        Pressure [Pa].
+
+    Returns
+    -------
+    tuple of ndarray
+        (phi_N2, phi_H2, phi_NH3) [-].
+    """
+    T = np.asarray(T, dtype=float)
+    p = np.asarray(P, dtype=float) / ATM
+    phi_n2 = 0.93431737 + 0.3101804e-3 * T + 0.295896e-3 * p - 0.2707279e-6 * T**2 + 0.4775207e-6 * p**2
+    phi_h2 = np.exp(
+        np.exp(-3.8402 * T**0.125 + 0.541) * p
+        - np.exp(-0.1263 * T**0.5 - 15.980) * p**2
+        + 300.0 * np.exp(-0.011901 * T - 5.941) * (np.exp(-p / 300.0) - 1.0)
+    )
+    phi_nh3 = 0.1438996 + 0.2028538e-2 * T - 0.4487672e-3 * p - 0.1142945e-5 * T**2 + 0.2761216e-6 * p**2
+    return phi_n2, phi_h2, phi_nh3
+
+
+def fugacity_model(eos: str, sset: SpeciesSet, kij=None):
+    """Return ``lnphi(T, P, y)`` for model ``eos`` and species set ``sset``.
+
+    Parameters
+    ----------
+    eos : str
+        One of :data:`MODELS`.
+    sset : SpeciesSet
+        Species, the order of the last axis of ``y``.
+    kij : ndarray or dict, optional
+        Peng-Robinson interaction parameters (overrides of ``data/pr_kij.csv``).
+
+    Returns
+    -------
+    callable
+        ``lnphi(T, P, y)`` with T [K], P [Pa] broadcast against ``y[..., 0]``; returns ln phi
+        with shape broadcast + (nc,) [-].
+    """
+    if eos not in MODELS:
+        raise InputError(f"eos must be one of {', '.join(MODELS)}, got {eos!r}")
+    if eos == "ideal":
+
+        def lnphi(T, P, y):
+            shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
+            return np.zeros(shape + (sset.n,))
+
+        return lnphi
+    k = kij_matrix(sset, kij if isinstance(kij, dict) else None)
+    if kij is not None and not isinstance(kij, dict):
+        k = np.asarray(kij, dtype=float)
+
+    def lnphi_pr(T, P, y):
+        return pr_state(T, P, y, sset, k, "vapour", h2_quantum=True)[1]
+
+    if eos == "peng-robinson":
+        return lnphi_pr
+    fitted = [n for n in ("N2", "H2", "NH3") if n in sset.names]
+    if not fitted:
+        raise InputError(
+            "eos='dyson-simon' has fits only for N2, H2 and NH3; none is in "
+            f"{', '.join(sset.names)}"
+        )
+    idx = [sset.index(n) for n in fitted]
+    others = [k_ for k_ in range(sset.n) if sset.names[k_] not in fitted]
+
+    def lnphi_ds(T, P, y):
+        phis = dict(zip(("N2", "H2", "NH3"), dyson_simon_phi(T, P), strict=True))
+        shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
+        out = np.zeros(shape + (sset.n,))
+        if others:
+            out[..., others] = lnphi_pr(T, P, y)[..., others]
+        for name, k_ in zip(fitted, idx, strict=True):
+            out[..., k_] = np.log(np.broadcast_to(phis[name], shape))
+        return out
+
+    return lnphi_ds

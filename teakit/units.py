@@ -1,0 +1,96 @@
+"""Quantities at the edge: parse "200 bar", "450 degC", "3.5 USD/kg" once, work in SI inside.
+
+Inside teakit every number is SI (K, Pa, mol/s, kg, m, J, W) and money is US dollars of the
+study's stated cost year. This module is the one place where pint is used. Plain numbers passed to
+:func:`to_si` are taken to be in the SI unit already; strings and pint quantities are converted.
+
+The registry defines a currency dimension with ``USD`` (and ``kUSD``, ``MUSD``) and the common
+trade units ``t`` (metric tonne), ``MMBtu``, ``barg`` is *not* defined on purpose: gauge pressure
+must be stated as such by the caller (pass absolute pressure).
+"""
+
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+
+from teakit.errors import InputError
+
+__all__ = ["Q_", "registry", "to_si"]
+
+_DEFINITIONS = [
+    "USD = [currency]",
+    "kUSD = 1e3 * USD",
+    "MUSD = 1e6 * USD",
+    "cent = 0.01 * USD",
+    "MMBtu = 1e6 * Btu",
+]
+
+
+@functools.cache
+def registry():
+    """The shared pint UnitRegistry (offset units auto-converted, currency defined)."""
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    for line in _DEFINITIONS:
+        ureg.define(line)
+    return ureg
+
+
+def Q_(value, unit=None):
+    """A pint Quantity on the teakit registry: ``Q_("450 degC")`` or ``Q_(450, "degC")``."""
+    ureg = registry()
+    if unit is None:
+        return ureg.Quantity(value)
+    return ureg.Quantity(value, unit)
+
+
+def to_si(value, unit: str, name: str = "value") -> np.ndarray | float:
+    """Convert ``value`` to a float (array) in ``unit``.
+
+    Parameters
+    ----------
+    value : float, array_like, str or pint.Quantity
+        A plain number or array is returned unchanged (taken to be in ``unit`` already); a string
+        such as ``"300 atm"`` or a pint quantity is converted.
+    unit : str
+        Target unit, e.g. ``"K"``, ``"Pa"``, ``"USD/kg"``.
+    name : str
+        Argument name used in error messages.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        The magnitude in ``unit``.
+
+    Raises
+    ------
+    InputError
+        If the string cannot be parsed or its dimension does not convert to ``unit``.
+    """
+    if isinstance(value, str) or (hasattr(value, "magnitude") and hasattr(value, "units")):
+        ureg = registry()
+        import pint
+
+        try:
+            q = ureg.Quantity(value) if isinstance(value, str) else value
+            if not hasattr(q, "to"):
+                raise InputError(
+                    f"{name} = {value!r} has no unit; give it as e.g. '1 {unit}' or a plain number"
+                    f" in {unit}"
+                )
+            out = q.to(unit).magnitude
+        except pint.errors.DimensionalityError as exc:
+            raise InputError(
+                f"{name} = {value!r} does not convert to {unit} ({exc.dim1} vs {exc.dim2})"
+            ) from exc
+        except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError) as exc:
+            raise InputError(f"{name} = {value!r}: unknown unit ({exc})") from exc
+        except (AttributeError, TypeError, ValueError, SyntaxError) as exc:
+            if isinstance(exc, InputError):
+                raise
+            raise InputError(f"{name} = {value!r} is not a quantity with a unit: {exc}") from exc
+        return np.asarray(out, dtype=float) if np.ndim(out) else float(out)
+    return value
