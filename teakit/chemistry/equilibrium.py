@@ -33,7 +33,7 @@ def _sigmoid(u):
     return 0.5 * (1.0 + np.tanh(0.5 * u))
 
 
-def _single(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
+def _single(nu, n0, lnK, lnP, lnphi, max_iter, tol):
     """One reaction: nu (ns,), n0 (B, ns), lnK (B,), lnP (B,) = ln(P/P0). Returns xi (B,)."""
     pos, neg = nu > 0, nu < 0
     with np.errstate(divide="ignore"):
@@ -50,23 +50,26 @@ def _single(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
             "feed has no reactant and no product the reaction can use: the reaction can proceed "
             f"neither forward nor backward (batch member {k}, feed {n0[k].tolist()})"
         )
-    base_hi = np.maximum(n0 + nu * hi[:, None], 0.0)  # species limiting at xi = hi are exactly 0
+    # n_i = c0_i + cs_i (xi - lo) + cm_i (hi - xi): species limiting at either bound are then
+    # exactly zero there, without cancellation near complete conversion.
+    base_hi = np.maximum(n0 + nu * hi[:, None], 0.0)
     base_lo = np.maximum(n0 + nu * lo[:, None], 0.0)
+    c0 = np.where(neg, base_hi, np.where(pos, base_lo, n0))
+    cs = np.where(pos, nu, 0.0)
+    cm = np.where(neg, -nu, 0.0)
     dnu = nu.sum()
+    n_all = n0.shape[0]
 
     def evaluate(u_sub, idx):
         """Residual, its derivative in u, and the amounts, for the members ``idx``."""
+        sel = slice(None) if idx.size == n_all else idx
         s, sm = _sigmoid(u_sub), _sigmoid(-u_sub)
-        Di = D[idx]
-        n = np.where(
-            neg,
-            base_hi[idx] - nu * (Di * sm)[:, None],
-            np.where(pos, base_lo[idx] + nu * (Di * s)[:, None], n0[idx]),
-        )
+        Di = D[sel]
+        n = c0[sel] + cs * (Di * s)[:, None] + cm * (Di * sm)[:, None]
         n = np.maximum(n, _TINY)
         nt = n.sum(axis=-1)
-        lnphi = lnphi_fn(T[idx], P[idx], n / nt[:, None])
-        f = lnK[idx] - (nu * (np.log(n) + lnphi)).sum(axis=-1) + dnu * (np.log(nt) - lnP[idx])
+        lnph = lnphi(n / nt[:, None], None if idx.size == n_all else idx)
+        f = lnK[sel] - (nu * (np.log(n) + lnph)).sum(axis=-1) + dnu * (np.log(nt) - lnP[sel])
         dfdxi = -((nu**2 / n).sum(axis=-1) - dnu**2 / nt)
         return f, dfdxi * Di * s * sm, n
 
@@ -146,7 +149,7 @@ def _interior_start(nu, n0_unique):
     return starts
 
 
-def _multi(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
+def _multi(nu, n0, lnK, lnP, lnphi, max_iter, tol):
     R = nu.shape[0]
     uniq, inverse = np.unique(n0, axis=0, return_inverse=True)
     xi = _interior_start(nu, uniq)[inverse.ravel()]
@@ -161,8 +164,7 @@ def _multi(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
         n = np.maximum(n, _TINY)
         nt = n.sum(axis=-1)
         y = n / nt[:, None]
-        lnphi = lnphi_fn(T[idx], P[idx], y)
-        mu = np.log(y) + lnphi + lnP[idx][:, None]
+        mu = np.log(y) + lnphi(y, idx) + lnP[idx][:, None]
         Fi = lnK[idx] - mu @ nu.T
         F[idx] = Fi
         done = np.max(np.abs(Fi), axis=-1) < tol
@@ -186,7 +188,7 @@ def _multi(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol):
     return np.maximum(n0 + xi @ nu, 0.0)
 
 
-def solve_extents(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter=MAX_ITER, tol=TOL):
+def solve_extents(nu, n0, lnK, lnP, model, T, P, max_iter=MAX_ITER, tol=TOL):
     """Equilibrium amounts for a flat batch.
 
     Parameters
@@ -199,8 +201,8 @@ def solve_extents(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter=MAX_ITER, tol=TOL):
         ln of the equilibrium constants at each member's T [-].
     lnP : ndarray (B,)
         ln(P / P_REF) [-].
-    lnphi_fn : callable
-        ``lnphi(T, P, y)`` of :mod:`teakit.thermo.fugacity`.
+    model : FugacityModel
+        Fugacity model of :mod:`teakit.thermo.fugacity` for the species set.
     T, P : ndarray (B,)
         Temperature [K] and pressure [Pa].
 
@@ -209,6 +211,7 @@ def solve_extents(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter=MAX_ITER, tol=TOL):
     ndarray (B, ns)
         Equilibrium amounts [mol].
     """
+    lnphi = model.bind(T, P)
     if nu.shape[0] == 1:
-        return _single(nu[0], n0, lnK[:, 0], lnP, lnphi_fn, T, P, max_iter, tol)
-    return _multi(nu, n0, lnK, lnP, lnphi_fn, T, P, max_iter, tol)
+        return _single(nu[0], n0, lnK[:, 0], lnP, lnphi, max_iter, tol)
+    return _multi(nu, n0, lnK, lnP, lnphi, max_iter, tol)

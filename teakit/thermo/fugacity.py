@@ -22,10 +22,10 @@ from __future__ import annotations
 import numpy as np
 
 from teakit.errors import InputError
-from teakit.thermo.peng_robinson import kij_matrix, pr_state
+from teakit.thermo.peng_robinson import kij_matrix, pr_mixture, pure_parameters
 from teakit.thermo.species import SpeciesSet
 
-__all__ = ["MODELS", "dyson_simon_phi", "fugacity_model"]
+__all__ = ["MODELS", "FugacityModel", "dyson_simon_phi", "fugacity_model"]
 
 ATM = 101325.0
 MODELS = ("ideal", "peng-robinson", "dyson-simon")
@@ -69,8 +69,78 @@ def dyson_simon_phi(T, P):
     return phi_n2, phi_h2, phi_nh3
 
 
-def fugacity_model(eos: str, sset: SpeciesSet, kij=None):
-    """Return ``lnphi(T, P, y)`` for model ``eos`` and species set ``sset``.
+class FugacityModel:
+    """ln phi of every species of a set, for one model; see :func:`fugacity_model`.
+
+    Call it as ``model(T, P, y)``; a solver that iterates on composition at fixed states calls
+    ``model.bind(T, P)`` once and then the returned ``lnphi(y, idx)`` for the members ``idx``,
+    so the temperature-dependent parts are computed once.
+    """
+
+    def __init__(self, eos: str, sset: SpeciesSet, kij=None):
+        if eos not in MODELS:
+            raise InputError(f"eos must be one of {', '.join(MODELS)}, got {eos!r}")
+        self.eos, self.sset = eos, sset
+        k = kij_matrix(sset, kij if isinstance(kij, dict) else None)
+        if kij is not None and not isinstance(kij, dict):
+            k = np.asarray(kij, dtype=float)
+        self.kij = k
+        if eos == "dyson-simon":
+            self._fitted = [n for n in ("N2", "H2", "NH3") if n in sset.names]
+            if not self._fitted:
+                raise InputError(
+                    "eos='dyson-simon' has fits only for N2, H2 and NH3; none is in "
+                    f"{', '.join(sset.names)}"
+                )
+            self._idx = [sset.index(n) for n in self._fitted]
+            self._others = [i for i in range(sset.n) if sset.names[i] not in self._fitted]
+
+    def __repr__(self):
+        return f"FugacityModel({self.eos!r}, {self.sset!r})"
+
+    def __call__(self, T, P, y):
+        """ln phi [-], shape broadcast(T, P, y[..., 0]) + (nc,); T [K], P [Pa], y [-]."""
+        y = np.asarray(y, dtype=float)
+        shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
+        T = np.broadcast_to(np.asarray(T, dtype=float), shape).reshape(-1)
+        P = np.broadcast_to(np.asarray(P, dtype=float), shape).reshape(-1)
+        yb = np.broadcast_to(y, shape + (self.sset.n,)).reshape(-1, self.sset.n)
+        return self.bind(T, P)(yb).reshape(shape + (self.sset.n,))
+
+    def bind(self, T, P):
+        """Precompute at the flat state arrays T [K], P [Pa]; return ``lnphi(y, idx=None)``."""
+        T = np.asarray(T, dtype=float)
+        P = np.asarray(P, dtype=float)
+        n = self.sset.n
+        if self.eos == "ideal":
+            return lambda y, idx=None: np.zeros(y.shape[:-1] + (n,))
+        pure = pure_parameters(self.sset, T, h2_quantum=True)
+
+        def lnphi_pr(y, idx=None):
+            if idx is None:
+                return pr_mixture(pure, self.kij, T, P, y)[1]
+            sub = tuple(p[idx] for p in pure)
+            return pr_mixture(sub, self.kij, T[idx], P[idx], y)[1]
+
+        if self.eos == "peng-robinson":
+            return lnphi_pr
+        fits = np.log(np.stack(dyson_simon_phi(T, P), axis=-1))  # (..., 3) for N2, H2, NH3
+        col = {"N2": 0, "H2": 1, "NH3": 2}
+        cols = [col[nm] for nm in self._fitted]
+
+        def lnphi_ds(y, idx=None):
+            out = np.empty(y.shape[:-1] + (n,))
+            if self._others:
+                out[..., self._others] = lnphi_pr(y, idx)[..., self._others]
+            f = fits if idx is None else fits[idx]
+            out[..., self._idx] = f[..., cols]
+            return out
+
+        return lnphi_ds
+
+
+def fugacity_model(eos: str, sset: SpeciesSet, kij=None) -> FugacityModel:
+    """The fugacity-coefficient model ``eos`` for species set ``sset``.
 
     Parameters
     ----------
@@ -79,49 +149,11 @@ def fugacity_model(eos: str, sset: SpeciesSet, kij=None):
     sset : SpeciesSet
         Species, the order of the last axis of ``y``.
     kij : ndarray or dict, optional
-        Peng-Robinson interaction parameters (overrides of ``data/pr_kij.csv``).
+        Peng-Robinson interaction parameters (overrides of ``data/pr_kij.csv``) [-].
 
     Returns
     -------
-    callable
-        ``lnphi(T, P, y)`` with T [K], P [Pa] broadcast against ``y[..., 0]``; returns ln phi
-        with shape broadcast + (nc,) [-].
+    FugacityModel
+        ``model(T, P, y)`` gives ln phi with shape broadcast + (nc,) [-].
     """
-    if eos not in MODELS:
-        raise InputError(f"eos must be one of {', '.join(MODELS)}, got {eos!r}")
-    if eos == "ideal":
-
-        def lnphi(T, P, y):
-            shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
-            return np.zeros(shape + (sset.n,))
-
-        return lnphi
-    k = kij_matrix(sset, kij if isinstance(kij, dict) else None)
-    if kij is not None and not isinstance(kij, dict):
-        k = np.asarray(kij, dtype=float)
-
-    def lnphi_pr(T, P, y):
-        return pr_state(T, P, y, sset, k, "vapour", h2_quantum=True)[1]
-
-    if eos == "peng-robinson":
-        return lnphi_pr
-    fitted = [n for n in ("N2", "H2", "NH3") if n in sset.names]
-    if not fitted:
-        raise InputError(
-            "eos='dyson-simon' has fits only for N2, H2 and NH3; none is in "
-            f"{', '.join(sset.names)}"
-        )
-    idx = [sset.index(n) for n in fitted]
-    others = [k_ for k_ in range(sset.n) if sset.names[k_] not in fitted]
-
-    def lnphi_ds(T, P, y):
-        phis = dict(zip(("N2", "H2", "NH3"), dyson_simon_phi(T, P), strict=True))
-        shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
-        out = np.zeros(shape + (sset.n,))
-        if others:
-            out[..., others] = lnphi_pr(T, P, y)[..., others]
-        for name, k_ in zip(fitted, idx, strict=True):
-            out[..., k_] = np.log(np.broadcast_to(phis[name], shape))
-        return out
-
-    return lnphi_ds
+    return FugacityModel(eos, sset, kij)

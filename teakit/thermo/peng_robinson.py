@@ -104,7 +104,12 @@ def _critical(sset: SpeciesSet, T: np.ndarray, h2_quantum: bool):
     return Tc, Pc, om
 
 
-def _pure_params(sset: SpeciesSet, T: np.ndarray, h2_quantum: bool = False):
+def pure_parameters(sset: SpeciesSet, T, h2_quantum: bool = True):
+    """Peng-Robinson a_i(T) [Pa m6/mol2], da_i/dT [Pa m6/(mol2 K)], b_i [m3/mol], shape T.shape + (nc,)."""
+    return _pure_params(sset, np.asarray(T, dtype=float), h2_quantum)
+
+
+def _pure_params(sset: SpeciesSet, T: np.ndarray, h2_quantum: bool = True):
     """a_i(T), da_i/dT, b_i; shapes T.shape + (nc,)."""
     Tc, Pc, om = _critical(sset, T, h2_quantum)
     kappa = np.where(
@@ -120,6 +125,36 @@ def _pure_params(sset: SpeciesSet, T: np.ndarray, h2_quantum: bool = False):
     dadT = -ac * m * kappa * sqrt_tr / t
     b = 0.07780 * R * Tc / Pc
     return a, dadT, b
+
+
+def _vapour_root(A: np.ndarray, B: np.ndarray) -> np.ndarray:
+    """Largest root of the PR cubic: Newton from Z = 1 + B, closed form where that fails.
+
+    With A >= 0 the largest root lies below 1 + B (the root for A = 0), and Newton's method started
+    there descends monotonically onto it while the cubic is convex, i.e. while the root lies above
+    the inflection point (1 - B)/3. Members that do not meet that test in 12 steps take the closed
+    form.
+    """
+    c2 = -(1.0 - B)
+    c1 = A - 3.0 * B**2 - 2.0 * B
+    c0 = -(A * B - B**2 - B**3)
+    z = 1.0 + B
+    for _ in range(12):
+        f = ((z + c2) * z + c1) * z + c0
+        df = (3.0 * z + 2.0 * c2) * z + c1
+        z_new = z - f / np.where(df > 0, df, 1.0)
+        if np.all(np.abs(z_new - z) <= 1e-13 * z):
+            z = z_new
+            break
+        z = z_new
+    f = ((z + c2) * z + c1) * z + c0
+    df = (3.0 * z + 2.0 * c2) * z + c1
+    ok = (z > -c2 / 3.0) & (df > 0) & (np.abs(f) <= 1e-12 * np.maximum(1.0, np.abs(c0)))
+    if not ok.all():
+        bad = ~ok
+        z = z.copy()
+        z[bad] = _cubic_roots(A[bad], B[bad], "vapour")
+    return z
 
 
 def _cubic_roots(A: np.ndarray, B: np.ndarray, phase: str) -> np.ndarray:
@@ -173,18 +208,30 @@ def pr_state(T, P, y, sset: SpeciesSet, kij: np.ndarray, phase="vapour", h2_quan
     """
     shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
     T = np.broadcast_to(T, shape)
+    pure = _pure_params(sset, T, h2_quantum)
+    return pr_mixture(pure, kij, T, P, y, phase, want_enthalpy)
+
+
+def pr_mixture(pure, kij, T, P, y, phase="vapour", want_enthalpy=False):
+    """Z and ln phi from pure-component parameters ``pure = (a, dadT, b)`` at the states' T.
+
+    Lets a solver that iterates on composition at fixed T compute the T-dependent pure
+    parameters once (see :func:`pure_parameters`).
+    """
+    a, dadT, b = pure
+    shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
+    T = np.broadcast_to(T, shape)
     P = np.broadcast_to(P, shape)
-    y = np.broadcast_to(y, shape + (sset.n,))
-    a, dadT, b = _pure_params(sset, T, h2_quantum)
+    y = np.broadcast_to(y, shape + (y.shape[-1],))
     sa = np.sqrt(a)
-    aij = sa[..., :, None] * sa[..., None, :] * (1.0 - kij)
-    sum_ya = np.einsum("...j,...ij->...i", y, aij)
-    am = np.einsum("...i,...i->...", y, sum_ya)
-    bm = np.einsum("...i,...i->...", y, b)
+    # sum_j y_j a_ij with a_ij = sqrt(a_i a_j) (1 - k_ij), without forming a_ij per state.
+    sum_ya = sa * ((y * sa) @ (1.0 - kij).T)
+    am = np.sum(y * sum_ya, axis=-1)
+    bm = np.sum(y * b, axis=-1)
     RT = R * T
     A = am * P / RT**2
     B = bm * P / RT
-    Z = _cubic_roots(A, B, phase)
+    Z = _vapour_root(A, B) if phase == "vapour" else _cubic_roots(A, B, phase)
     L = np.log((Z + (1 + _SQ2) * B) / (Z + (1 - _SQ2) * B))
     bi_bm = b / bm[..., None]
     lnphi = (
@@ -195,6 +242,7 @@ def pr_state(T, P, y, sset: SpeciesSet, kij: np.ndarray, phase="vapour", h2_quan
     if not want_enthalpy:
         return Z, lnphi
     # d a_m / dT for the vdW one-fluid rule with constant k_ij.
+    aij = sa[..., :, None] * sa[..., None, :] * (1.0 - kij)
     daij = 0.5 * aij * (dadT[..., :, None] / a[..., :, None] + dadT[..., None, :] / a[..., None, :])
     dam = np.einsum("...i,...j,...ij->...", y, y, daij)
     h_res = RT * (Z - 1.0) + (T * dam - am) / (2 * _SQ2 * bm) * L
