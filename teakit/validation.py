@@ -11,7 +11,15 @@ import numpy as np
 
 from teakit.errors import InputError
 
-__all__ = ["as_float_array", "check_finite", "check_fraction", "check_positive", "check_range"]
+__all__ = [
+    "as_float_array",
+    "broadcast_arrays",
+    "check_finite",
+    "check_fraction",
+    "check_positive",
+    "check_range",
+    "scalar_or_array",
+]
 
 
 def _first_bad(a: np.ndarray, bad: np.ndarray) -> str:
@@ -81,3 +89,21 @@ def check_fraction(name: str, value, open_ends: bool = False) -> np.ndarray:
     """Float array of ``value``; InputError unless every element is in [0, 1] ((0, 1) if open)."""
     inc = (not open_ends, not open_ends)
     return check_range(name, value, 0.0, 1.0, inclusive=inc)
+
+
+def broadcast_arrays(**named) -> list[np.ndarray]:
+    """Broadcast named arguments against each other as float arrays.
+
+    Raises InputError naming every argument's shape when they do not broadcast.
+    """
+    try:
+        return [np.asarray(a, dtype=float) for a in np.broadcast_arrays(*named.values())]
+    except ValueError as exc:
+        shapes = ", ".join(f"{k} {np.shape(v)}" for k, v in named.items())
+        raise InputError(f"arguments do not broadcast against each other: {shapes}") from exc
+
+
+def scalar_or_array(a):
+    """A 0-d result as a Python scalar (float for float arrays), anything else unchanged."""
+    a = np.asarray(a)
+    return a.item() if a.ndim == 0 else a
