@@ -5,7 +5,7 @@
    Wall thicknesses are a preliminary estimate, not for design or fabrication; the applicable
    pressure-vessel code, local regulations and a licensed engineer govern.
 
-Compressor power lives in :mod:`teakit.equipment.compressor`.
+Compressor power (:mod:`teakit.equipment.compressor`) is shared with the process layer.
 """
 
 from __future__ import annotations
@@ -17,6 +17,13 @@ from teakit.equipment.catalyst import (
     catalyst_volume_from_space_velocity,
     gas_hourly_space_velocity,
     normal_volumetric_flow,
+)
+from teakit.equipment.compressor import (
+    CompressionResult,
+    compression_detail,
+    compressor_power,
+    isentropic_head,
+    polytropic_head,
 )
 from teakit.equipment.exchanger import (
     cooling_water_flow,
@@ -38,6 +45,7 @@ from teakit.equipment.vessel import (
 
 __all__ = [
     "BedDimensions",
+    "CompressionResult",
     "ShellThickness",
     "allowable_stress",
     "allowable_stress_materials",
@@ -45,14 +53,18 @@ __all__ = [
     "catalyst_bed_dimensions",
     "catalyst_mass",
     "catalyst_volume_from_space_velocity",
+    "compression_detail",
+    "compressor_power",
     "cooling_water_flow",
     "exchanger_area",
     "fired_heater_fuel",
     "gas_hourly_space_velocity",
     "head_surface_area",
     "head_thickness",
+    "isentropic_head",
     "lmtd",
     "normal_volumetric_flow",
+    "polytropic_head",
     "refrigeration_power",
     "shell_thickness",
     "shell_thickness_detail",

@@ -14,6 +14,7 @@ from teakit.thermo.peng_robinson import (
     fugacity_coefficients,
     kij_matrix,
     residual_enthalpy,
+    residual_entropy,
 )
 from teakit.thermo.species import P_REF, T_REF, R, SpeciesSet, known_species, species_set
 
@@ -34,5 +35,6 @@ __all__ = [
     "mixture_enthalpy",
     "mixture_entropy",
     "residual_enthalpy",
+    "residual_entropy",
     "species_set",
 ]

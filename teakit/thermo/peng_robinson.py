@@ -43,6 +43,7 @@ __all__ = [
     "fugacity_coefficients",
     "kij_matrix",
     "residual_enthalpy",
+    "residual_entropy",
 ]
 
 _SQ2 = np.sqrt(2.0)
@@ -204,7 +205,9 @@ def pr_state(T, P, y, sset: SpeciesSet, kij: np.ndarray, phase="vapour", h2_quan
     """Z, ln phi (and residual enthalpy) without argument checks: the internal hot path.
 
     ``T`` and ``P`` are arrays broadcast to ``y.shape[:-1]``; ``y`` sums to 1 along the last axis.
-    Returns ``(Z, lnphi)`` or ``(Z, lnphi, h_res)`` with h_res in J/mol.
+    Returns ``(Z, lnphi)`` or, with ``want_enthalpy``, ``(Z, lnphi, h_res, s_res)`` with the
+    residual enthalpy in J/mol and the residual entropy in J/(mol K), both relative to the ideal
+    gas at the same T and P.
     """
     shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
     T = np.broadcast_to(T, shape)
@@ -246,7 +249,8 @@ def pr_mixture(pure, kij, T, P, y, phase="vapour", want_enthalpy=False):
     daij = 0.5 * aij * (dadT[..., :, None] / a[..., :, None] + dadT[..., None, :] / a[..., None, :])
     dam = np.einsum("...i,...j,...ij->...", y, y, daij)
     h_res = RT * (Z - 1.0) + (T * dam - am) / (2 * _SQ2 * bm) * L
-    return Z, lnphi, h_res
+    s_res = R * np.log(Z - B) + dam / (2 * _SQ2 * bm) * L
+    return Z, lnphi, h_res, s_res
 
 
 def _check_inputs(T, P, y, species, phase, kij):
@@ -354,5 +358,23 @@ def residual_enthalpy(T, P, y, species, phase="vapour", kij=None, h2_quantum=Tru
         Residual enthalpy [J/mol].
     """
     sset, T, P, y, k = _check_inputs(T, P, y, species, phase, kij)
-    _, _, h = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
+    _, _, h, _ = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
     return _scalar(h)
+
+
+def residual_entropy(T, P, y, species, phase="vapour", kij=None, h2_quantum=True):
+    """Peng-Robinson residual molar entropy s - s_ideal_gas at the same T and P.
+
+    .. math:: s^R = R \\ln(Z-B) + \\frac{da/dT}{2\\sqrt2 b}
+              \\ln\\frac{Z+(1+\\sqrt2)B}{Z+(1-\\sqrt2)B}
+
+    Parameters are those of :func:`compressibility`.
+
+    Returns
+    -------
+    float or ndarray
+        Residual entropy [J/(mol K)].
+    """
+    sset, T, P, y, k = _check_inputs(T, P, y, species, phase, kij)
+    _, _, _, s = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
+    return _scalar(s)
