@@ -10,7 +10,7 @@ import sys
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).parent))
-from _common import one_core, result, timed  # noqa: E402
+from _common import one_core, result, timed
 
 one_core()
 
