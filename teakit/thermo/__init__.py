@@ -1,5 +1,13 @@
 """Thermodynamics: species data, ideal-gas properties, Peng-Robinson, fugacity models."""
 
+from teakit.thermo.flash import (
+    FlashEnthalpy,
+    FlashResult,
+    condenses,
+    flash_enthalpy,
+    flash_tp,
+    saturation_pressure,
+)
 from teakit.thermo.ideal_gas import (
     cp,
     enthalpy,
@@ -21,12 +29,17 @@ from teakit.thermo.species import P_REF, T_REF, R, SpeciesSet, known_species, sp
 __all__ = [
     "P_REF",
     "T_REF",
+    "FlashEnthalpy",
+    "FlashResult",
     "R",
     "SpeciesSet",
     "compressibility",
+    "condenses",
     "cp",
     "enthalpy",
     "entropy",
+    "flash_enthalpy",
+    "flash_tp",
     "fugacity_coefficients",
     "gibbs",
     "kij_matrix",
@@ -36,5 +49,6 @@ __all__ = [
     "mixture_entropy",
     "residual_enthalpy",
     "residual_entropy",
+    "saturation_pressure",
     "species_set",
 ]

@@ -239,3 +239,56 @@ def mixture_entropy(T, P, y, species):
         ylny = np.where(y > 0, y * np.log(np.where(y > 0, y, 1.0)), 0.0)
     s = np.sum(y * s_R(T, sset) - ylny, axis=-1) - np.log(P / P_REF)
     return _finish(R * s, False)
+
+
+# -- fast paths for linear combinations of species (mixtures, reactions) --------------------------
+
+
+def combined_coefficients(sset: SpeciesSet, w) -> np.ndarray:
+    """NASA coefficients of a linear combination sum_i w_i (species i), per range.
+
+    Parameters
+    ----------
+    sset : SpeciesSet
+        Species; all must share one range boundary T_mid.
+    w : array_like (..., nc)
+        Weights, e.g. molar flows [mol/s] or stoichiometric coefficients [-].
+
+    Returns
+    -------
+    ndarray (..., 2, 7)
+        Coefficients of the low [0] and high [1] range; with :func:`poly_h_RT` and friends they
+        give sum_i w_i h_i / (R T) etc. in one polynomial evaluation.
+    """
+    if not np.all(sset.T_mid == sset.T_mid[0]):
+        raise InputError("combined coefficients need species with one common range boundary T_mid")
+    return np.einsum("...i,rik->...rk", np.asarray(w, dtype=float), sset.coeffs)
+
+
+def _select(c: np.ndarray, T: np.ndarray, T_mid: float) -> np.ndarray:
+    high = T > T_mid
+    if not high.any():
+        return c[..., 0, :]
+    if high.all():
+        return c[..., 1, :]
+    return np.where(high[..., None], c[..., 1, :], c[..., 0, :])
+
+
+def poly_h_RT(c: np.ndarray, T: np.ndarray, T_mid: float) -> np.ndarray:
+    """sum w_i h_i/(R T) from combined coefficients ``c`` (..., 2, 7) at T (...) [-]."""
+    a = _select(c, T, T_mid)
+    return a[..., 0] + T * (a[..., 1] / 2 + T * (a[..., 2] / 3 + T * (a[..., 3] / 4 + T * a[..., 4] / 5))) + a[..., 5] / T
+
+
+def poly_cp_R(c: np.ndarray, T: np.ndarray, T_mid: float) -> np.ndarray:
+    """sum w_i cp_i / R from combined coefficients [-]."""
+    a = _select(c, T, T_mid)
+    return a[..., 0] + T * (a[..., 1] + T * (a[..., 2] + T * (a[..., 3] + T * a[..., 4])))
+
+
+def poly_g_RT(c: np.ndarray, T: np.ndarray, T_mid: float) -> np.ndarray:
+    """sum w_i g_i/(R T) at 1 bar from combined coefficients [-]."""
+    a = _select(c, T, T_mid)
+    h = a[..., 0] + T * (a[..., 1] / 2 + T * (a[..., 2] / 3 + T * (a[..., 3] / 4 + T * a[..., 4] / 5))) + a[..., 5] / T
+    s = a[..., 0] * np.log(T) + T * (a[..., 1] + T * (a[..., 2] / 2 + T * (a[..., 3] / 3 + T * a[..., 4] / 4))) + a[..., 6]
+    return h - s

@@ -137,8 +137,8 @@ def _vapour_root(A: np.ndarray, B: np.ndarray) -> np.ndarray:
     form.
     """
     c2 = -(1.0 - B)
-    c1 = A - 3.0 * B**2 - 2.0 * B
-    c0 = -(A * B - B**2 - B**3)
+    c1 = A - 3.0 * B * B - 2.0 * B
+    c0 = -(A * B - B * B - B * B * B)
     z = 1.0 + B
     for _ in range(12):
         f = ((z + c2) * z + c1) * z + c0
@@ -161,8 +161,8 @@ def _vapour_root(A: np.ndarray, B: np.ndarray) -> np.ndarray:
 def _cubic_roots(A: np.ndarray, B: np.ndarray, phase: str) -> np.ndarray:
     """Root of Z^3 - (1-B) Z^2 + (A - 3B^2 - 2B) Z - (AB - B^2 - B^3) = 0 per ``phase``."""
     c2 = -(1.0 - B)
-    c1 = A - 3.0 * B**2 - 2.0 * B
-    c0 = -(A * B - B**2 - B**3)
+    c1 = A - 3.0 * B * B - 2.0 * B
+    c0 = -(A * B - B * B - B * B * B)
     p = c1 - c2**2 / 3.0
     q = 2.0 * c2**3 / 27.0 - c2 * c1 / 3.0 + c0
     disc = (q / 2.0) ** 2 + (p / 3.0) ** 3
@@ -271,9 +271,10 @@ def _check_inputs(T, P, y, species, phase, kij):
     if (tot <= 0).any():
         raise InputError("y (mole fractions) must not all be zero")
     y = y / tot
-    k = kij_matrix(sset) if kij is None else np.asarray(kij, dtype=float)
-    if isinstance(kij, dict):
+    if kij is None or isinstance(kij, dict):
         k = kij_matrix(sset, kij)
+    else:
+        k = np.asarray(kij, dtype=float)
     if k.shape != (sset.n, sset.n):
         raise InputError(f"kij must be a ({sset.n}, {sset.n}) matrix or a dict of pairs")
     try:
