@@ -483,3 +483,20 @@ def test_common_call_shape():
         assert law.activity == 1.0
         r = law(np.full(3, T), np.full(3, P), np.broadcast_to(y, (3, len(y))), activity=np.array([0.0, 1.0, 2.0]))
         assert r.shape == (3,) and r[0] == 0.0 and r[2] == pytest.approx(2 * r[1], rel=1e-13)
+
+
+def test_fast_kernels_equal_the_checked_calls():
+    # The reactor's unchecked hot path must give the same number as the checked call.
+    from teakit.chemistry import AmmoniaTemkinPyzhev, SO2Collina
+
+    rng = np.random.default_rng(0)
+    T = rng.uniform(650.0, 800.0, 50)
+    P = rng.uniform(100e5, 300e5, 50)
+    y = rng.dirichlet([3, 9, 1, 0.5], 50)
+    law = AmmoniaTemkinPyzhev(species=("N2", "H2", "NH3", "Ar"))
+    np.testing.assert_allclose(law.kernel(T, P, y, activity=0.7), law(T, P, y, activity=0.7), rtol=1e-12)
+    so2 = SO2Collina(species=("SO2", "O2", "SO3", "N2"))
+    T2 = rng.uniform(680.0, 880.0, 50)
+    P2 = rng.uniform(1e5, 3e5, 50)
+    y2 = rng.dirichlet([1, 1, 0.5, 8], 50)
+    np.testing.assert_allclose(so2.kernel(T2, P2, y2), so2(T2, P2, y2), rtol=1e-12)

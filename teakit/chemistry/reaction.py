@@ -184,6 +184,12 @@ class ReactionSystem:
         if np.linalg.matrix_rank(self.nu) < len(eqs):
             raise InputError(f"the reactions {list(eqs)} are not independent (one is a combination of others)")
         self._sset = species_set(self.species)
+        self._T_mid = float(self._sset.T_mid[0])
+        self._c_nu = (
+            ideal_gas.combined_coefficients(self._sset, self.nu)
+            if np.all(self._sset.T_mid == self._T_mid)
+            else None
+        )
 
     def __repr__(self):
         return f"{type(self).__name__}({list(self.equations)!r})"
@@ -209,6 +215,9 @@ class ReactionSystem:
         return self._squeeze(np.exp(self._lnK(T)))
 
     def _lnK(self, T):
+        """ln K per reaction, shape T.shape + (R,), without argument checks (hot path)."""
+        if self._c_nu is not None:
+            return -ideal_gas.poly_g_RT(self._c_nu, np.asarray(T, float)[..., None], self._T_mid)
         g = ideal_gas.g_RT(T, self._sset)  # (..., ns)
         return -(g @ self.nu.T)
 
