@@ -52,9 +52,10 @@ def to_si(value, unit: str, name: str = "value") -> np.ndarray | float:
 
     Parameters
     ----------
-    value : float, array_like, str or pint.Quantity
+    value : float, array_like, str, pint.Quantity, or a list of strings/quantities
         A plain number or array is returned unchanged (taken to be in ``unit`` already); a string
-        such as ``"300 atm"`` or a pint quantity is converted.
+        such as ``"300 atm"``, a pint quantity, or a list of them (``["150 bar", "200 bar"]``)
+        is converted.
     unit : str
         Target unit, e.g. ``"K"``, ``"Pa"``, ``"USD/kg"``.
     name : str
@@ -70,17 +71,14 @@ def to_si(value, unit: str, name: str = "value") -> np.ndarray | float:
     InputError
         If the string cannot be parsed or its dimension does not convert to ``unit``.
     """
+    if isinstance(value, list | tuple) and any(isinstance(v, str) or hasattr(v, "units") for v in value):
+        return np.array([to_si(v, unit, f"{name}[{i}]") for i, v in enumerate(value)], dtype=float)
     if isinstance(value, str) or (hasattr(value, "magnitude") and hasattr(value, "units")):
         ureg = registry()
         import pint
 
         try:
             q = ureg.Quantity(value) if isinstance(value, str) else value
-            if not hasattr(q, "to"):
-                raise InputError(
-                    f"{name} = {value!r} has no unit; give it as e.g. '1 {unit}' or a plain number"
-                    f" in {unit}"
-                )
             out = q.to(unit).magnitude
         except pint.errors.DimensionalityError as exc:
             raise InputError(
