@@ -10,7 +10,7 @@ from __future__ import annotations
 
 __version__ = "0.1.0"
 
-__all__ = ["Reaction", "ReactionSystem", "__version__"]
+__all__ = ["Reaction", "ReactionSystem", "Study", "__version__"]
 
 
 def __getattr__(name):
@@ -19,4 +19,8 @@ def __getattr__(name):
         from teakit.chemistry import reaction
 
         return getattr(reaction, name)
+    if name == "Study":
+        from teakit.study.study import Study
+
+        return Study
     raise AttributeError(f"module 'teakit' has no attribute {name!r}")

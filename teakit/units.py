@@ -4,9 +4,9 @@ Inside teakit every number is SI (K, Pa, mol/s, kg, m, J, W) and money is US dol
 study's stated cost year. This module is the one place where pint is used. Plain numbers passed to
 :func:`to_si` are taken to be in the SI unit already; strings and pint quantities are converted.
 
-The registry defines a currency dimension with ``USD`` (and ``kUSD``, ``MUSD``) and the common
-trade units ``t`` (metric tonne), ``MMBtu``, ``barg`` is *not* defined on purpose: gauge pressure
-must be stated as such by the caller (pass absolute pressure).
+The registry defines a currency dimension with ``USD`` (and ``kUSD``, ``MUSD``), ``MMBtu``, and
+``m2``/``m3`` as written in the trade ("60 m3"); ``t`` is the metric tonne. ``barg`` is *not*
+defined on purpose: pressures are absolute (state gauge pressure as such in your own code).
 """
 
 from __future__ import annotations
@@ -25,6 +25,8 @@ _DEFINITIONS = [
     "MUSD = 1e6 * USD",
     "cent = 0.01 * USD",
     "MMBtu = 1e6 * Btu",
+    "m2 = meter ** 2",
+    "m3 = meter ** 3",
 ]
 
 

@@ -138,6 +138,8 @@ def broyden(
     jacobian: str = "finite-difference",
     fd_step: float = 1e-5,
     g_jacobian=None,
+    H0: np.ndarray | None = None,
+    keep: dict | None = None,
 ):
     """Solve x = g(x) for a batch by Broyden's method on f(x) = g(x) - x.
 
@@ -170,7 +172,11 @@ def broyden(
             f"jacobian must be 'finite-difference', 'identity' or a callable, got {jacobian!r}"
         )
     H = np.broadcast_to(-np.eye(m), (B, m, m)).copy()
-    if isinstance(jacobian, str) and jacobian == "finite-difference":
+    if H0 is not None:
+        H = np.array(H0, dtype=float).reshape(B, m, m)
+        bad = ~np.all(np.isfinite(H), axis=(1, 2))
+        H[bad] = -np.eye(m)
+    elif isinstance(jacobian, str) and jacobian == "finite-difference":
         # g at x0 and at x0 + h e_k (scaled), every member and direction in one call.
         idx_all = np.arange(B)
         h = fd_step
@@ -196,7 +202,7 @@ def broyden(
             break
         gx, info = g(x[idx], idx)
         _store(info_store, info, idx, B)
-        if it == 1 and callable(jacobian):
+        if it == 1 and callable(jacobian) and H0 is None:
             # A model-supplied estimate of dg/dx at x0 (e.g. from the physics of the loop).
             Jf = jacobian(x[idx], gx, info) * sc[idx][:, None, :] / sc[idx][:, :, None] - np.eye(m)[None]
             good = np.all(np.isfinite(Jf), axis=(1, 2)) & (np.abs(np.linalg.det(Jf)) > 1e-12)
@@ -234,6 +240,9 @@ def broyden(
         halted[idx[halt & ~done]] = True
         active[idx[stop]] = False
     converged = ~active & ~halted
+    if keep is not None:
+        keep["H"] = H
+        keep["scale"] = sc
     if raise_on_failure and (~converged).any():
         bad = np.flatnonzero(~converged)
         raise ConvergenceError(

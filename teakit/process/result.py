@@ -30,6 +30,9 @@ class ProcessResult:
     equipment: dict[str, dict]
     status: np.ndarray
     profiles: dict[str, np.ndarray] = field(default_factory=dict)
+    #: Solver state per member (e.g. a loop's converged tear and inverse Jacobian), which a
+    #: caller may pass back as ``warm`` to solve nearby points faster.
+    state: dict[str, np.ndarray] = field(default_factory=dict)
 
     def __len__(self) -> int:
         return len(self.status)

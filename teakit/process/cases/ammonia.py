@@ -129,7 +129,7 @@ def _flash_enthalpy(T, P, n, kij):
 
 
 def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = None, *,
-                 steps: int = 24, max_iter: int = 60) -> ProcessResult:
+                 steps: int = 24, max_iter: int = 60, warm: Mapping | None = None) -> ProcessResult:
     """Solve a batch of ammonia synthesis loops.
 
     Parameters
@@ -146,6 +146,9 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         Integration steps per bed.
     max_iter : int
         Bound on the loop iterations.
+    warm : mapping, optional
+        ``result.state`` of an earlier call at nearby points (same batch size): the converged
+        tear and inverse Jacobian start the solve, which then needs a few iterations only.
 
     Returns
     -------
@@ -176,7 +179,8 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
     for g in range(uniq.shape[0]):
         m = np.flatnonzero(inv.ravel() == g)
         sub = {k: v[m] for k, v in d.items()}
-        parts.append((m, _solve(sub, len(m), _kij({"kij_NH3_H2": uniq[g, 0], "kij_NH3_N2": uniq[g, 1]}), steps, max_iter)))
+        w = None if warm is None else {k: np.asarray(v)[m] for k, v in warm.items()}
+        parts.append((m, _solve(sub, len(m), _kij({"kij_NH3_H2": uniq[g, 0], "kij_NH3_N2": uniq[g, 1]}), steps, max_iter, w)))
     if len(parts) == 1:
         return parts[0][1]
     return _merge(parts, B)
@@ -198,10 +202,14 @@ def _merge(parts, B):
                     equipment[name][k][m] = v
         for k in profiles:
             profiles[k][m] = r.profiles[k]
-    return ProcessResult(first.case, values, first.units, equipment, status.astype(str), profiles)
+    state = {k: np.zeros((B,) + v.shape[1:]) for k, v in first.state.items()}
+    for m, r in parts:
+        for k in state:
+            state[k][m] = r.state[k]
+    return ProcessResult(first.case, values, first.units, equipment, status.astype(str), profiles, state)
 
 
-def _solve(d, B, kij, steps, max_iter):
+def _solve(d, B, kij, steps, max_iter, warm=None):
     sset = species_set(SPECIES)
     rate = _rate()
     P = d["pressure"]
@@ -274,8 +282,21 @@ def _solve(d, B, kij, steps, max_iter):
     dry = np.zeros(B, dtype=int)
     grow = np.zeros(B, dtype=int)
     # Quasi-Newton on the tear; its starting Jacobian comes from a coarser bed integration.
-    x, info, conv, iters = broyden(loop_map, x0, tol=1e-9, max_iter=max_iter, raise_on_failure=False,
-                                   g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(8, steps // 3)))
+    keep: dict = {}
+    if warm is not None:
+        good = np.all(np.isfinite(warm["tear"]), axis=-1) & (warm["tear"][:, 5] > 0)
+        x0 = np.where(good[:, None], warm["tear"], x0)
+        H0 = np.where(good[:, None, None], warm["H"], -np.eye(6)[None])
+        # Scaled variables differ with the start: rescale the inverse Jacobian to this x0.
+        s_old = warm["scale"]
+        s_new = np.max(np.abs(x0), axis=-1, keepdims=True) * np.ones_like(x0)
+        H0 = H0 * (s_old[:, :, None] / s_new[:, :, None]) * (s_new[:, None, :] / s_old[:, None, :])
+        x, info, conv, iters = broyden(loop_map, x0, tol=1e-9, max_iter=max_iter, raise_on_failure=False,
+                                       H0=H0, keep=keep)
+    else:
+        x, info, conv, iters = broyden(loop_map, x0, tol=1e-9, max_iter=max_iter, raise_on_failure=False,
+                                       g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(8, steps // 3)),
+                                       keep=keep)
     status = np.full(B, "ok", dtype=object)
     no_liquid = info.get("beta", np.ones(B)) >= 1.0
     status[no_liquid] = "separator above the dew point: nothing condenses"
@@ -424,7 +445,8 @@ def _solve(d, B, kij, steps, max_iter):
         "bed_V": np.stack([b.profile_V for b in beds], axis=1),
         "bed_feed_N2": np.stack([b.outlet.n[:, 0] + b.extent for b in beds], axis=1),
     }
-    return ProcessResult("ammonia_loop", values, units, equipment, status.astype(str), profiles)
+    state = {"tear": x, "H": keep["H"], "scale": keep["scale"]}
+    return ProcessResult("ammonia_loop", values, units, equipment, status.astype(str), profiles, state)
 
 
 def _area(Q, U, dT1, dT2):

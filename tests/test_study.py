@@ -1,0 +1,120 @@
+"""Studies: study files, batched evaluation, and the optimiser against brute force.
+
+Sources: a dense grid search of the same study (independent of the optimiser), and common
+practice for the location of the optimum of iron-catalyst loops (100-300 bar, 380-500 degC inlet).
+"""
+
+import numpy as np
+import pytest
+
+from teakit import Study
+from teakit.errors import InputError
+from teakit.study import study_from_text
+
+DEMO = "ammonia_port_aldren.toml"
+
+BASE = """
+[study]
+name = "test"
+case = "ammonia_loop"
+
+[decisions.pressure]
+low = "150 bar"
+high = "250 bar"
+default = "200 bar"
+
+[parameters]
+hydrogen_price = "2 USD/kg"
+"""
+
+
+@pytest.mark.parametrize(
+    "extra,match",
+    [
+        ("[decisions.presure]\nlow = '1 bar'\nhigh = '2 bar'\n", r"unknown decision 'presure' \(line \d+\)"),
+        ("[parameters2]\nx = 1\n", "unknown section 'parameters2'"),
+        ("[constraints]\npeak_catalyst_temperature = 800\n", r"constraints.peak_catalyst_temperature \(line \d+\): 800 has no unit"),
+        ("[constraints]\npeak_catalyst_temperature = '800 bar'\n", "does not convert to K"),
+        ("[decisions.catalyst_volume]\nlow = '1 m3'\nhigh = '5000 m3'\n", r"decisions.catalyst_volume .*outside the case's range"),
+        ("[decisions.purge_fraction]\nvalue = 0.02\nlow = 0.01\n", "a fixed decision takes only 'value'"),
+        ("[uncertainty.hydrogen_price]\ndistribution = 'weird'\n", "must be one of uniform, triangular, pert, normal, lognormal, discrete"),
+        ("[uncertainty.hydrogen_price]\ndistribution = 'triangular'\nlow = '3 USD/kg'\nmode = '2 USD/kg'\nhigh = '4 USD/kg'\n", "low <= mode <= high"),
+    ],
+)
+def test_study_file_errors_name_the_key(extra, match):
+    with pytest.raises(InputError, match=match):
+        study_from_text(BASE + extra)
+
+
+def test_study_file_errors_in_the_head():
+    with pytest.raises(InputError, match="unknown key study.cas"):
+        study_from_text("[study]\ncase = 'ammonia_loop'\ncas = 'x'\n")
+    with pytest.raises(InputError, match="unknown case 'methanol'"):
+        study_from_text("[study]\ncase = 'methanol'\n")
+    with pytest.raises(InputError, match="hydrogen_price .*has no unit"):
+        study_from_text(BASE.replace('"2 USD/kg"', "2.0"))
+    with pytest.raises(InputError, match="not valid TOML"):
+        study_from_text("[study\n")
+
+
+def test_demo_study_reads_and_evaluates_in_batches():
+    s = Study.from_toml(DEMO)
+    assert s.free == ["pressure", "inlet_temperature", "interbed_temperature",
+                      "separator_temperature", "purge_fraction", "catalyst_volume"]
+    assert s.parameter_table().loc["hydrogen_price", "nominal"] == 2.0
+    assert s.parameter_table().loc["capacity", "nominal"] == pytest.approx(600e3 / 86400)
+    P = np.array([160e5, 200e5, 240e5])
+    df = s.evaluate({"pressure": P})
+    assert len(df) == 3 and {"npv [USD]", "fixed_capital [USD]", "feasible", "status"} <= set(df.columns)
+    one = s.evaluate({"pressure": 200e5})
+    assert one["npv [USD]"].iloc[0] == pytest.approx(df["npv [USD]"].iloc[1], rel=1e-7)
+    assert np.isfinite(df.select_dtypes("number").to_numpy()).all()
+
+
+@pytest.fixture(scope="module")
+def reduced():
+    # Two free decisions (pressure, catalyst volume), the rest fixed: small enough to brute force.
+    text = BASE.replace('low = "150 bar"', 'low = "120 bar"').replace('high = "250 bar"', 'high = "280 bar"') + """
+[decisions.catalyst_volume]
+low = "12 m3"
+high = "60 m3"
+default = "30 m3"
+"""
+    return study_from_text(text)
+
+
+def test_optimum_agrees_with_dense_grid(reduced):
+    grid = reduced.landscape("pressure", "catalyst_volume", n=25)
+    feasible = grid[grid["feasible"]]
+    g_best = feasible.loc[feasible["npv [USD]"].idxmax()]
+    best = reduced.optimize(n_start=32, max_yield=False)
+    # At least as good as the grid's best point and close to it. The objective has small steps
+    # (a compressor splits into parallel units as its power crosses a correlation's maximum), so
+    # the optimiser may settle between grid lines next to the grid's best: within two spacings.
+    dp = (280e5 - 120e5) / 24
+    dv = (60.0 - 12.0) / 24
+    assert abs(best.decisions["pressure"] - g_best["pressure [Pa]"]) <= 2 * dp
+    assert abs(best.decisions["catalyst_volume"] - g_best["catalyst_volume [m3]"]) <= 2 * dv
+    assert best.objective >= g_best["npv [USD]"] - 1e-6 * abs(g_best["npv [USD]"])
+    assert best.feasible
+
+
+def test_max_yield_point_and_profit_lost(reduced):
+    best = reduced.optimize(n_start=16, max_yield=True, max_iter=12)
+    my = best.max_yield
+    assert my is not None and my.feasible
+    # Yield (feed utilisation) rises with pressure and catalyst: the maximum-yield point sits at
+    # the upper bounds, the profit optimum does not; running for yield costs money.
+    assert my.metrics["yield [-]"] >= best.metrics["yield [-]"]
+    assert best.profit_lost_for_yield > 0
+
+
+def test_bad_study_arguments():
+    with pytest.raises(InputError, match="objective must be one of npv, annual_profit, irr, lcop"):
+        Study("ammonia_loop", objective="profit")
+    with pytest.raises(InputError, match="unknown decision 'x'"):
+        Study("ammonia_loop", decisions={"x": {}})
+    with pytest.raises(InputError, match="no free decisions"):
+        Study("ammonia_loop").optimize()
+    with pytest.raises(InputError, match="unknown decision 'pressur'"):
+        Study.from_toml(DEMO).landscape("pressur", "catalyst_volume")
