@@ -537,7 +537,7 @@ class AmmoniaTemkinPyzhev(RateLaw):
         phi_n2, phi_h2, phi_nh3 = dyson_simon_phi(T, P)
         p = P / ATM
         aN2 = y[..., iN2] * phi_n2 * p
-        aH2 = np.maximum(y[..., iH2] * phi_h2 * p, 1e-300)  # the bed keeps H2 > 0; guard round-off
+        aH2 = np.maximum(y[..., iH2] * phi_h2 * p, 1e-100)  # the bed keeps H2 > 0; guard round-off
         aNH3 = y[..., iNH3] * phi_nh3 * p
         if self.Ka == "teakit":
             Ka = np.exp(self._half._lnK(T)[..., 0]) * 1.01325  # K_atm = K_bar 1.01325^(-dnu)

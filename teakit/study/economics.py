@@ -148,7 +148,7 @@ def plant_economics(process, economics: Mapping | None = None, *, with_metrics: 
             hi = kinds.loc[kind, "capacity_max_SI"] * 10.0
             beyond = live & ((cap > hi) | (cap < lo))
             status = np.where(beyond & (status == "ok"), f"{name} beyond the cost correlation's range", status)
-            cap_safe = np.where(live, np.clip(cap, lo, hi), 1.0)
+            cap_safe = np.where(live, np.clip(cap, lo, hi), lo)  # absent items: any valid size, cost zeroed
             P_barg = np.maximum(np.asarray(item.get("pressure_gauge", 0.0), float) / 1e5, 0.0)
             D = item.get("diameter")
             c = bare_module_cost(kind, cap_safe, P_barg, item.get("material", "CS"), D) * live

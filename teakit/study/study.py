@@ -200,11 +200,16 @@ class Study:
         return ({k: np.broadcast_to(v, (B,)) for k, v in dec.items()},
                 {k: np.broadcast_to(v, (B,)) for k, v in par.items()}, B)
 
-    def _run(self, dec, par, B, with_metrics=True, warm=None):
+    def _run(self, dec, par, B, with_metrics=True, warm=None, search=False):
         phys = {k: v for k, v in par.items() if self._parameters[k].kind == "physics"}
         econ = {k: v for k, v in par.items() if self._parameters[k].kind == "economics"}
         fn = self._info["function"]
-        proc = fn(dec, phys, warm=warm) if warm is not None else fn(dec, phys)
+        # During the search a coarser solve serves (fewer bed steps, looser loop tolerance:
+        # objective differences stay below 1e-4 relative); reported figures use the defaults.
+        kw = dict(self._info.get("search_options", {})) if search else {}
+        if warm is not None:
+            kw["warm"] = warm
+        proc = fn(dec, phys, **kw)
         money = plant_economics(proc, econ, with_metrics=with_metrics)
         vals = {**proc.values, **{k: v for k, v in money.items() if not k.startswith("_") and k != "status"}}
         margins = {}
@@ -350,7 +355,7 @@ class Study:
             x = lo + u * (hi - lo)
             dec = {k: x[:, i] for i, k in enumerate(free)} | {k: np.full(len(u), v) for k, v in fixed.items()}
             pr = {k: v[p_idx] for k, v in par.items()}
-            proc, vals, margins, status, yld = self._run(dec, pr, len(u), self.objective in ("irr", "lcop"), warm)
+            proc, vals, margins, status, yld = self._run(dec, pr, len(u), self.objective in ("irr", "lcop"), warm, search=True)
             merit, _, _ = self._merit(vals, margins, status, yld, target)
             return merit, proc.state
 

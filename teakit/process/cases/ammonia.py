@@ -129,7 +129,8 @@ def _flash_enthalpy(T, P, n, kij):
 
 
 def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = None, *,
-                 steps: int = 24, max_iter: int = 60, warm: Mapping | None = None) -> ProcessResult:
+                 steps: int = 24, max_iter: int = 60, warm: Mapping | None = None,
+                 tol: float = 1e-9) -> ProcessResult:
     """Solve a batch of ammonia synthesis loops.
 
     Parameters
@@ -146,6 +147,9 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         Integration steps per bed.
     max_iter : int
         Bound on the loop iterations.
+    tol : float
+        Loop convergence: largest change of the tear stream relative to its largest flow [-].
+        The element balances close to about this.
     warm : mapping, optional
         ``result.state`` of an earlier call at nearby points (same batch size): the converged
         tear and inverse Jacobian start the solve, which then needs a few iterations only.
@@ -180,7 +184,7 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         m = np.flatnonzero(inv.ravel() == g)
         sub = {k: v[m] for k, v in d.items()}
         w = None if warm is None else {k: np.asarray(v)[m] for k, v in warm.items()}
-        parts.append((m, _solve(sub, len(m), _kij({"kij_NH3_H2": uniq[g, 0], "kij_NH3_N2": uniq[g, 1]}), steps, max_iter, w)))
+        parts.append((m, _solve(sub, len(m), _kij({"kij_NH3_H2": uniq[g, 0], "kij_NH3_N2": uniq[g, 1]}), steps, max_iter, w, tol)))
     if len(parts) == 1:
         return parts[0][1]
     return _merge(parts, B)
@@ -209,7 +213,7 @@ def _merge(parts, B):
     return ProcessResult(first.case, values, first.units, equipment, status.astype(str), profiles, state)
 
 
-def _solve(d, B, kij, steps, max_iter, warm=None):
+def _solve(d, B, kij, steps, max_iter, warm=None, tol=1e-9):
     sset = species_set(SPECIES)
     rate = _rate()
     P = d["pressure"]
@@ -291,10 +295,10 @@ def _solve(d, B, kij, steps, max_iter, warm=None):
         s_old = warm["scale"]
         s_new = np.max(np.abs(x0), axis=-1, keepdims=True) * np.ones_like(x0)
         H0 = H0 * (s_old[:, :, None] / s_new[:, :, None]) * (s_new[:, None, :] / s_old[:, None, :])
-        x, info, conv, iters = broyden(loop_map, x0, tol=1e-9, max_iter=max_iter, raise_on_failure=False,
+        x, info, conv, iters = broyden(loop_map, x0, tol=tol, max_iter=max_iter, raise_on_failure=False,
                                        H0=H0, keep=keep)
     else:
-        x, info, conv, iters = broyden(loop_map, x0, tol=1e-9, max_iter=max_iter, raise_on_failure=False,
+        x, info, conv, iters = broyden(loop_map, x0, tol=tol, max_iter=max_iter, raise_on_failure=False,
                                        g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(8, steps // 3)),
                                        keep=keep)
     status = np.full(B, "ok", dtype=object)
@@ -315,8 +319,9 @@ def _solve(d, B, kij, steps, max_iter, warm=None):
     mu_supply = Stream(SPECIES, F[:, None] * y_mu, d["makeup_temperature"], d["makeup_pressure"])
     mu_power, mu_Tdis, mu_cool, mu_stages = compress_staged(
         F, d["makeup_temperature"], d["makeup_pressure"], P, y_mu, SPECIES, d["compressor_efficiency"], d["makeup_temperature"])
+    y_rec = np.where(recycle.total[:, None] > 0, recycle.y, y_mu)  # a collapsed loop has no recycle
     circ_power, _, _, _ = compress_staged(
-        recycle.total, T_sep, P_sep, P, recycle.y, SPECIES, d["circulator_efficiency"], T_sep)
+        recycle.total, T_sep, P_sep, P, y_rec, SPECIES, d["circulator_efficiency"], T_sep)
     feed = mix(recycle.at(P=P), mu_supply.at(P=P), P=P)
     eff, beds, q_inter = converter(feed, idx)
     H = lambda s: enthalpy_flow(s.n, s.T, sset)  # noqa: E731
