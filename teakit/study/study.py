@@ -261,7 +261,7 @@ class Study:
         return pd.DataFrame(cols)
 
     # -- optimisation ------------------------------------------------------------------------
-    def _merit(self, vals, margins, status, yld, target):
+    def _merit(self, vals, margins, status, yld, target, slack=0.0):
         ok = status == "ok"
         if target == "yield":
             obj = yld
@@ -274,7 +274,7 @@ class Study:
         for name, mg in margins.items():
             c = self._constraints[name]
             scale = max(abs(c.limit), 1.0)
-            viol += np.maximum(-mg, 0.0) / scale
+            viol += np.maximum(slack * scale - mg, 0.0) / scale
         scale = np.nanmedian(np.abs(m[ok])) if ok.any() else 1.0
         merit = m - 10.0 * max(scale, 1e-12) * (1.0 + 100.0 * viol) * (viol > 0)
         return np.where(ok, merit, -np.inf), obj, viol
@@ -356,7 +356,9 @@ class Study:
             dec = {k: x[:, i] for i, k in enumerate(free)} | {k: np.full(len(u), v) for k, v in fixed.items()}
             pr = {k: v[p_idx] for k, v in par.items()}
             proc, vals, margins, status, yld = self._run(dec, pr, len(u), self.objective in ("irr", "lcop"), warm, search=True)
-            merit, _, _ = self._merit(vals, margins, status, yld, target)
+            # A small slack on every constraint during the coarser search keeps the optimum
+            # feasible when it is evaluated again at full accuracy.
+            merit, _, _ = self._merit(vals, margins, status, yld, target, slack=1e-4)
             return merit, proc.state
 
         # Stage 1: the Sobol sample for every parameter set (physics shared where equal).
