@@ -172,14 +172,23 @@ def run_bed(
     def temperature(xi, T_guess, newton=2):
         if mode == "isothermal":
             return T0
-        c = c0 + xi[:, None, None] * c_nu
         T = T_guess
         for _ in range(newton):
-            T = np.minimum(np.maximum(T - (T * ideal_gas.poly_h_RT(c, T, T_mid) - H0) / ideal_gas.poly_cp_R(c, T, T_mid), lo_T), hi_T)
+            if np.all(T <= T_mid) or np.all(T > T_mid):
+                # One range for the whole batch: H/R and Cp/R from one set of coefficients.
+                r = 0 if T[0] <= T_mid else 1
+                a = c0[:, r, :] + xi[:, None] * c_nu[r]
+                HR = T * (a[:, 0] + T * (a[:, 1] / 2 + T * (a[:, 2] / 3 + T * (a[:, 3] / 4 + T * a[:, 4] / 5)))) + a[:, 5]
+                CR = a[:, 0] + T * (a[:, 1] + T * (a[:, 2] + T * (a[:, 3] + T * a[:, 4])))
+            else:
+                c = c0 + xi[:, None, None] * c_nu
+                HR = T * ideal_gas.poly_h_RT(c, T, T_mid)
+                CR = ideal_gas.poly_cp_R(c, T, T_mid)
+            T = np.minimum(np.maximum(T - (HR - H0) / CR, lo_T), hi_T)
         return T
 
     def f(xi, T_guess, P, newton=2):
-        T = temperature(xi, T_guess, newton)
+        T = temperature(xi, T_guess, newton) if newton else T_guess
         n = np.maximum(n0 + xi[:, None] * nu, 0.0)
         y = n / n.sum(axis=-1, keepdims=True)
         return kernel(T, P, y, **params), T
@@ -200,7 +209,7 @@ def run_bed(
         mass_flow = np.sum(n0 * sset.molar_mass, axis=-1)  # kg/s, constant along the bed
     for k in range(steps):
         h = V * (fr[k + 1] - fr[k])
-        f0, T = f(xi, T, P)
+        f0, T = f(xi, T, P, newton=0)  # T is already the energy-balance temperature at xi
         # A coarse difference: ROS2 keeps its order with any Jacobian, and a larger step keeps
         # round-off (which would make the outlet a noisy function of the inlet) out of it.
         delta = 1e-4 * np.maximum(np.abs(xi), 1e-3 * n0.sum(axis=-1))
@@ -221,7 +230,7 @@ def run_bed(
             euler = xi + h * f0 / np.maximum(1.0 - h * J, 1.0)
             xi_new = np.where(reverse, euler, xi_new)
         xi = np.clip(xi_new, xi_min, xi_max)
-        T = temperature(xi, T)
+        T = temperature(xi, T, newton=3 if k == steps - 1 else 2)
         n_k = n0 + xi[:, None] * nu
         if ergun is not None:
             ntot = n_k.sum(axis=-1)

@@ -129,7 +129,7 @@ def _flash_enthalpy(T, P, n, kij):
 
 
 def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = None, *,
-                 steps: int = 24, max_iter: int = 60, warm: Mapping | None = None,
+                 steps: int = 24, max_iter: int = 40, warm: Mapping | None = None,
                  tol: float = 1e-9) -> ProcessResult:
     """Solve a batch of ammonia synthesis loops.
 
@@ -299,7 +299,7 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=1e-9):
                                        H0=H0, keep=keep)
     else:
         x, info, conv, iters = broyden(loop_map, x0, tol=tol, max_iter=max_iter, raise_on_failure=False,
-                                       g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(8, steps // 3)),
+                                       g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(6, steps // 4)),
                                        keep=keep)
     status = np.full(B, "ok", dtype=object)
     no_liquid = info.get("beta", np.ones(B)) >= 1.0
