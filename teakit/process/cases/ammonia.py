@@ -40,9 +40,9 @@ from teakit.equipment.exchanger import exchanger_area
 from teakit.equipment.refrigeration import refrigeration_power
 from teakit.equipment.vessel import allowable_stress, shell_thickness_detail, vessel_mass
 from teakit.errors import InputError
-from teakit.process.bed import run_bed
 from teakit.process.cases.common import Spec, compress_staged, resolve
 from teakit.process.loop import broyden
+from teakit.process.reactor import multibed
 from teakit.process.result import ProcessResult
 from teakit.process.streams import Stream, enthalpy_flow, mix, temperature_from_enthalpy
 from teakit.thermo.species import species_set
@@ -235,18 +235,9 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=1e-9):
 
     def converter(feed: Stream, idx, steps=steps):
         """Preheat, beds with inter-bed cooling; returns effluent, bed results, duties."""
-        s = feed.at(T=T_beds[idx, 0])
-        beds, q_inter = [], []
-        for j in range(N_BEDS):
-            if j > 0:
-                cooled = s.at(T=T_beds[idx, j])
-                q_inter.append(enthalpy_flow(s.n, s.T, sset) - enthalpy_flow(cooled.n, cooled.T, sset))
-                s = cooled
-            res = run_bed(rate, s, V_beds[idx, j], nu=NU, steps=steps,
-                          rate_params={"activity": d["catalyst_activity"][idx]})
-            beds.append(res)
-            s = res.outlet
-        return s, beds, np.stack(q_inter, axis=-1)
+        conv = multibed(rate, feed, V_beds[idx], T_beds[idx], nu=NU, cooling="exchanger", steps=steps,
+                        rate_params={"activity": d["catalyst_activity"][idx]})
+        return conv.outlet, conv.beds, conv.interbed_duty
 
     def loop_map(x, idx, steps=steps):
         R = x[:, :5]
