@@ -7,8 +7,9 @@ maps the objective over two decisions.
 
 The optimiser is global enough for these smooth, low-dimensional problems: a scrambled Sobol
 sample of the decision box (Sobol, USSR Comput. Math. Math. Phys. 7, 86, 1967; scipy.stats.qmc)
-evaluated in one batch, then a batched compass (pattern) search from the best few distinct
-points (Kolda, Lewis & Torczon, SIAM Rev. 45, 385, 2003), all starts and all parameter sets
+evaluated in one batch, then a batched compass search with Hooke-Jeeves pattern moves from the
+best few distinct points (Hooke & Jeeves, J. ACM 8, 212, 1961; Kolda, Lewis & Torczon, SIAM
+Rev. 45, 385, 2003), all starts and all parameter sets
 stepping together in one batch per iteration, with step halving to a tolerance. Constraints are
 handled by a penalty on their relative violation; members the process reports infeasible never
 win.
@@ -279,8 +280,8 @@ class Study:
         merit = m - 10.0 * max(scale, 1e-12) * (1.0 + 100.0 * viol) * (viol > 0)
         return np.where(ok, merit, -np.inf), obj, viol
 
-    def optimize(self, parameters: Mapping | None = None, *, n_start: int = 256, starts: int = 4,
-                 seed: int = 0, tol: float = 2e-3, max_iter: int = 30, max_yield: bool = True):
+    def optimize(self, parameters: Mapping | None = None, *, n_start: int = 128, starts: int = 3,
+                 seed: int = 0, tol: float = 2e-3, max_iter: int = 25, max_yield: bool = True):
         """The profit-optimal decisions (and the maximum-yield point) for one or many parameter sets.
 
         Parameters
@@ -387,21 +388,27 @@ class Study:
         centre = {k: v[pick] for k, v in state0.items()}  # (P, starts, ...)
         step = np.full((P, starts), 0.1)
         E = np.vstack([np.eye(d), -np.eye(d)])  # compass directions
+        move = np.zeros((P, starts, d))  # last accepted displacement (Hooke-Jeeves pattern)
+        nc = 2 * d + 2
         for _ in range(max_iter):
             active = step > tol
             if not active.any():
                 break
-            cand = np.clip(X[:, :, None, :] + step[:, :, None, None] * E[None, None], 0.0, 1.0)  # (P,S,2d,d)
-            pidx = np.repeat(np.arange(P), starts * 2 * d)
-            warm = {k: np.repeat(v.reshape((P * starts,) + v.shape[2:]), 2 * d, axis=0) for k, v in centre.items()} or None
+            compass = X[:, :, None, :] + step[:, :, None, None] * E[None, None]
+            pattern = X[:, :, None, :] + np.stack([move, 2.0 * move], axis=2)  # ridge moves
+            cand = np.clip(np.concatenate([compass, pattern], axis=2), 0.0, 1.0)  # (P,S,nc,d)
+            pidx = np.repeat(np.arange(P), starts * nc)
+            warm = {k: np.repeat(v.reshape((P * starts,) + v.shape[2:]), nc, axis=0) for k, v in centre.items()} or None
             mc, st = run(cand.reshape(-1, d), pidx, warm)
-            mc = mc.reshape(P, starts, 2 * d)
-            n_eval += cand.shape[0] * starts * 2 * d
+            mc = mc.reshape(P, starts, nc)
+            n_eval += P * starts * nc
             j = np.argmax(mc, axis=-1)
             better = (mc.max(axis=-1) > F) & active
-            X = np.where(better[..., None], np.take_along_axis(cand, j[..., None, None], axis=2)[:, :, 0, :], X)
+            new_X = np.take_along_axis(cand, j[..., None, None], axis=2)[:, :, 0, :]
+            move = np.where(better[..., None], new_X - X, 0.0)
+            X = np.where(better[..., None], new_X, X)
             for k, v in st.items():
-                v = v.reshape((P, starts, 2 * d) + v.shape[1:])
+                v = v.reshape((P, starts, nc) + v.shape[1:])
                 chosen = np.take_along_axis(v, j.reshape((P, starts, 1) + (1,) * (v.ndim - 3)), axis=2)[:, :, 0]
                 centre[k] = np.where(better.reshape((P, starts) + (1,) * (v.ndim - 3)), chosen, centre[k])
             F = np.where(better, mc.max(axis=-1), F)
