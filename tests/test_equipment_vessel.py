@@ -476,3 +476,13 @@ def test_module_docstrings_carry_the_caution():
     )
     for obj in (v, v.shell_thickness, v.shell_thickness_detail, v.head_thickness, v.ShellThickness):
         assert caution in " ".join(obj.__doc__.split()).lower()
+
+
+def test_allowable_stress_above_any_plate_steel_is_an_error():
+    # 20,000 psi typed as if it were Pa-scaled MPa (a unit slip) must not pass silently.
+    from teakit.equipment import head_thickness, shell_thickness
+
+    with pytest.raises(InputError, match=r"S = 2e\+09 Pa is above any ASME VIII-1 allowable stress"):
+        shell_thickness(P=200e5, D=1.8, S=2e9)
+    with pytest.raises(InputError, match="valid: 0 < S <= 4e"):
+        head_thickness(P=200e5, D=1.8, S=5e8)

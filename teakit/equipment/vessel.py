@@ -193,10 +193,27 @@ class ShellThickness:
         return str(names[f]) if f.ndim == 0 else names[f]
 
 
+#: Upper bound on an allowable stress [Pa]: Division 1 allowables (the lesser of tensile strength
+#: / 3.5 and 2/3 of yield) of listed plate steels stay below about 250 MPa (from memory, confirm
+#: against ASME Section II Part D Table 1A); 400 MPa leaves room and catches unit slips (psi, MPa).
+S_MAX = 400e6
+
+
+def _check_S(S):
+    S = check_positive("S", S, "Pa")
+    bad = S > S_MAX
+    if bad.any():
+        raise InputError(
+            f"S = {_first(bad, S):.6g} Pa is above any ASME VIII-1 allowable stress of plate steels "
+            f"(valid: 0 < S <= {S_MAX:g} Pa); S is in Pa, e.g. 138e6 for SA-516 Gr 70"
+        )
+    return S
+
+
 def _shell_arrays(P, D, S, E, corrosion_allowance, t_min, method, E_circumferential):
     P = check_positive("P", P, "Pa", allow_zero=True)
     D = check_positive("D", D, "m")
-    S = check_positive("S", S, "Pa")
+    S = _check_S(S)
     E = _joint_efficiency("E", E)
     Ec = (
         E
@@ -526,7 +543,7 @@ def head_thickness(
     method = _check_choice("method", method, _METHODS, {"lamé": "lame"})
     P = check_positive("P", P, "Pa", allow_zero=True)
     D = check_positive("D", D, "m")
-    S = check_positive("S", S, "Pa")
+    S = _check_S(S)
     E = _joint_efficiency("E", E)
     ca = check_positive("corrosion_allowance", corrosion_allowance, "m", allow_zero=True)
     tm = check_positive("t_min", t_min, "m", allow_zero=True)
