@@ -8,6 +8,7 @@ hand for the adiabatic temperature rise.
 
 import numpy as np
 import pytest
+from reference import cantera_phase_from_kit
 from scipy.integrate import solve_ivp
 
 from teakit import Reaction
@@ -94,8 +95,6 @@ def test_long_adiabatic_bed_vs_cantera_hp():
     # adiabatic bed ends at the adiabatic equilibrium intercept, which Cantera's
     # equilibrate('HP') finds on a phase built from teakit's own species data.
     ct = pytest.importorskip("cantera")
-    from test_equilibrium import cantera_phase_from_kit
-
     sp = ("SO2", "O2", "SO3", "N2")
     law = ReversibleRate(Reaction("SO2 + 0.5 O2 = SO3"), A=1e6, Ea=60e3, species=sp)
     n = np.array([[0.10, 0.11, 0.0, 0.79]]) * 100.0

@@ -26,6 +26,7 @@ test reports, not hides, that. Peng-Robinson with zero k_ij is 1.5-2.2 points lo
 
 import numpy as np
 import pytest
+from reference import cantera_phase_from_kit
 
 from teakit import Reaction, ReactionSystem
 from teakit.errors import InputError
@@ -97,26 +98,6 @@ def test_K_is_consistent_between_scalings():
 
 
 # -- Cantera (test-only) ------------------------------------------------------------------------
-
-
-def cantera_phase_from_kit(names):
-    """A Cantera ideal-gas phase built from the kit's own NASA coefficients (isolates the solver)."""
-    ct = pytest.importorskip("cantera")
-    s = species_set(names)
-    from teakit.thermo.species import load_table, parse_formula
-
-    formulas = load_table("species").set_index("species")["formula"]
-    lines = ["phases:", "- name: gas", "  thermo: ideal-gas", f"  species: [{', '.join(names)}]",
-             "  elements: [" + ", ".join(s.elements) + "]", "species:"]
-    for k, n in enumerate(names):
-        comp = ", ".join(f"{e}: {c:g}" for e, c in parse_formula(formulas[n]).items())
-        lo = ", ".join(repr(float(c)) for c in s.coeffs[0, k])
-        hi = ", ".join(repr(float(c)) for c in s.coeffs[1, k])
-        lines += [f"- name: {n}", f"  composition: {{{comp}}}", "  thermo:", "    model: NASA7",
-                  f"    temperature-ranges: [{s.T_low[k]}, {s.T_mid[k]}, {s.T_high[k]}]",
-                  "    reference-pressure: 1e5",
-                  f"    data: [[{lo}], [{hi}]]"]
-    return ct.Solution(yaml="\n".join(lines) + "\n", name="gas")
 
 
 @pytest.mark.parametrize(

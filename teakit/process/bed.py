@@ -44,6 +44,8 @@ from teakit.validation import check_positive
 __all__ = ["BedResult", "ErgunBed", "run_bed"]
 
 _GAMMA = 1.0 + 1.0 / np.sqrt(2.0)
+#: Fraction of the inlet pressure below which a bed's pressure is called collapsed [-].
+P_FLOOR = 0.25
 
 
 @dataclass(frozen=True)
@@ -83,6 +85,8 @@ class BedResult:
         Highest temperature in the bed [K] (the outlet for an exothermic adiabatic bed).
     profile_V, profile_T, profile_xi : ndarray (B, steps + 1)
         Catalyst volume from the inlet [m3], temperature [K] and extent [mol/s] at each step.
+    collapsed : ndarray of bool (B,)
+        Members whose Ergun pressure would fall below ``P_FLOOR`` of the inlet (held there).
     """
 
     outlet: Stream
@@ -91,6 +95,7 @@ class BedResult:
     profile_V: np.ndarray
     profile_T: np.ndarray
     profile_xi: np.ndarray
+    collapsed: np.ndarray | None = None
 
 
 def _grid(steps: int, grading: float) -> np.ndarray:
@@ -158,9 +163,9 @@ def run_bed(
     with np.errstate(divide="ignore", invalid="ignore"):
         xi_max = np.min(np.where(neg, n0 / np.where(neg, -nu, 1.0), np.inf), axis=-1)
         xi_min = np.max(np.where(pos, -n0 / np.where(pos, nu, 1.0), -np.inf), axis=-1)
-    # Keep every species strictly present: a rate law may be singular where one vanishes.
-    margin = 1e-9 * n0.sum(axis=-1)
-    xi_max, xi_min = xi_max - margin, xi_min + margin
+    # Keep the reactants strictly present (a rate law may be singular where one vanishes, e.g.
+    # the Temkin-Pyzhev reverse term at zero H2); products may be absent.
+    xi_max = xi_max - 1e-9 * n0.sum(axis=-1)
     lo_T, hi_T = sset.T_range
     # Energy balance along the bed: H(T, xi) = sum_i (n0_i + nu_i xi) h_i(T) = H_in, evaluated
     # from combined NASA coefficients (one polynomial per member instead of one per species).
@@ -194,6 +199,7 @@ def run_bed(
         return kernel(T, P, y, **params), T
 
     fr = _grid(steps, grading)
+    collapsed = np.zeros(B, dtype=bool)
     xi = np.zeros(B)
     T = T0.copy()
     P = P0.copy()
@@ -215,9 +221,10 @@ def run_bed(
         delta = 1e-4 * np.maximum(np.abs(xi), 1e-3 * n0.sum(axis=-1))
         f1, _ = f(xi + delta, T, P, newton=1)
         J = (f1 - f0) / delta
-        # ROS2 is of order two for any approximation of J (a W-method); a positive J (the bed
-        # heating up, rate rising along it) is kept only while the step stays well conditioned.
-        denom = np.maximum(1.0 - _GAMMA * h * J, 0.25)
+        # ROS2 is of order two for any approximation of J (a W-method). A positive J (a bed
+        # lighting off, the rate rising along it) is left out (W = 0 turns the step into Heun's
+        # explicit second-order method) so that it can never amplify a step.
+        denom = 1.0 - _GAMMA * h * np.minimum(J, 0.0)
         k1 = f0 / denom
         f2, _ = f(np.clip(xi + h * k1, xi_min, xi_max), T, P)
         k2 = (f2 - 2.0 * k1) / denom
@@ -238,8 +245,11 @@ def run_bed(
             u = mass_flow / rho / area
             dPdz = 150 * mu * (1 - eps) ** 2 * u / (eps**3 * dp**2) + 1.75 * (1 - eps) * rho * u**2 / (eps**3 * dp)
             P = P - dPdz * h / area
-            if np.any(P <= 0):
-                raise InputError("the Ergun pressure drop exceeds the inlet pressure: bed too long or too narrow")
+            # A bed that would lose more than three quarters of its inlet pressure is flagged
+            # (too long or too narrow for its flow) and held at that floor, never negative.
+            low = P < P_FLOOR * P0
+            collapsed |= low
+            P = np.where(low, P_FLOOR * P0, P)
         prof_xi[:, k + 1] = xi
         prof_T[:, k + 1] = T
     n_out = np.maximum(n0 + xi[:, None] * nu, 0.0)
@@ -251,4 +261,5 @@ def run_bed(
         profile_V=V[:, None] * fr[None, :],
         profile_T=prof_T,
         profile_xi=prof_xi,
+        collapsed=collapsed,
     )

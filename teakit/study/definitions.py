@@ -118,9 +118,14 @@ def _so2():
         "function": so2.so2_converter,
         "decisions": so2.DECISIONS,
         "physics": so2.PHYSICS,
-        "yield": lambda v: v["conversion"],
+        "yield": lambda v: v["overall_conversion"],
         "yield_name": "overall SO2 conversion",
-        "constraints": getattr(so2, "CONSTRAINTS", {}),
+        "search_options": {"steps": 24},
+        "constraints": {
+            "peak_catalyst_temperature": ("max", 903.15, "K"),  # 630 degC, vanadium catalyst (common practice)
+            "so2_emission": ("max", 2.0, "kg/t"),  # 40 CFR 60 Subpart H new-source limit
+            "stack_pressure_margin": ("min", 0.0, "Pa"),  # gas must leave the final absorber above ambient
+        },
     }
 
 
