@@ -221,10 +221,12 @@ def run_bed(
         delta = 1e-4 * np.maximum(np.abs(xi), 1e-3 * n0.sum(axis=-1))
         f1, _ = f(xi + delta, T, P, newton=1)
         J = (f1 - f0) / delta
-        # ROS2 is of order two for any approximation of J (a W-method). A positive J (a bed
-        # lighting off, the rate rising along it) is left out (W = 0 turns the step into Heun's
-        # explicit second-order method) so that it can never amplify a step.
-        denom = 1.0 - _GAMMA * h * np.minimum(J, 0.0)
+        # ROS2 is of order two for any approximation of J (a W-method). For a positive J (a bed
+        # lighting off, the rate rising along it) 1 - gamma h J is replaced by 1/(1 + gamma h J):
+        # equal to first order, but it never vanishes, so a step grows at most like an explicit
+        # one instead of blowing up as gamma h J approaches 1.
+        ghJ = _GAMMA * h * J
+        denom = np.where(ghJ > 0.0, 1.0 / (1.0 + np.maximum(ghJ, 0.0)), 1.0 - ghJ)
         k1 = f0 / denom
         f2, _ = f(np.clip(xi + h * k1, xi_min, xi_max), T, P)
         k2 = (f2 - 2.0 * k1) / denom
