@@ -213,6 +213,15 @@ def run_bed(
         eps = np.asarray(ergun.void_fraction, float)
         mu = np.asarray(ergun.viscosity, float)
         mass_flow = np.sum(n0 * sset.molar_mass, axis=-1)  # kg/s, constant along the bed
+
+        def ergun_gradient(T_, P_, ntot):
+            """-dP/dV [Pa/m3] by Ergun with the ideal-gas density."""
+            rho = P_ * mass_flow / ntot / (R * T_)
+            u = mass_flow / rho / area
+            dPdz = 150 * mu * (1 - eps) ** 2 * u / (eps**3 * dp**2) + 1.75 * (1 - eps) * rho * u**2 / (eps**3 * dp)
+            return dPdz / area
+
+        G = ergun_gradient(T0, P0, n0.sum(axis=-1))
     for k in range(steps):
         h = V * (fr[k + 1] - fr[k])
         f0, T = f(xi, T, P, newton=0)  # T is already the energy-balance temperature at xi
@@ -242,11 +251,12 @@ def run_bed(
         T = temperature(xi, T, newton=3 if k == steps - 1 else 2)
         n_k = n0 + xi[:, None] * nu
         if ergun is not None:
-            ntot = n_k.sum(axis=-1)
-            rho = P * mass_flow / ntot / (R * T)  # ideal-gas density [kg/m3]
-            u = mass_flow / rho / area
-            dPdz = 150 * mu * (1 - eps) ** 2 * u / (eps**3 * dp**2) + 1.75 * (1 - eps) * rho * u**2 / (eps**3 * dp)
-            P = P - dPdz * h / area
+            # Trapezoidal rule over the step: the gradient at its start and at its end (the end
+            # evaluated at the Euler-predicted pressure).
+            G_end = ergun_gradient(T, P - G * h, n_k.sum(axis=-1))
+            P_next = P - 0.5 * (G + G_end) * h
+            G = ergun_gradient(T, P_next, n_k.sum(axis=-1))
+            P = P_next
             # A bed that would lose more than three quarters of its inlet pressure is flagged
             # (too long or too narrow for its flow) and held at that floor, never negative.
             low = P < P_FLOOR * P0
