@@ -184,7 +184,10 @@ def test_long_first_bed_reaches_adiabatic_equilibrium_vs_cantera(strength, T_in)
     # 0.5 %. "Very long": 450 L of catalyst per t/d, ten times the default first bed; these beds
     # reach equilibrium within the first 25-60 L per t/d.
     gas = cantera_phase_from_kit(list(SPECIES))
-    r = so2_converter({"bed1_catalyst": "450 L/(t/d)", "so2_strength": strength, "bed1_inlet_temperature": T_in})
+    with warnings.catch_warnings():
+        # The 12 % gas takes a bed past the rate's 380-650 degC window; the case warns of it.
+        warnings.simplefilter("ignore", RangeWarning)
+        r = so2_converter({"bed1_catalyst": "450 L/(t/d)", "so2_strength": strength, "bed1_inlet_temperature": T_in})
     P_out = r["bed1_inlet_pressure"][0] - r["bed1_pressure_drop"][0]
     gas.TPX = T_in, P_out, {"SO2": strength, "O2": 0.21 - strength, "N2": 0.79}
     gas.equilibrate("HP")
