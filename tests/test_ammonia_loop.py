@@ -51,8 +51,12 @@ def test_element_balance_every_member(batch):
     outflow = out @ sset.element_matrix.T
     ok = r.ok
     assert ok.sum() >= 35
-    scale = inflow[ok].max(axis=-1, keepdims=True)
-    assert np.max(np.abs(outflow[ok] - inflow[ok]) / scale) < 1e-8
+    # Relative to the loop's largest stream, the converter feed (the make-up is 3-5x smaller;
+    # relative to it the closure is about 3e-9 with the default loop tolerance).
+    feed = (np.stack([r[f"converter_inlet_y_{s}"] for s in SPECIES], axis=-1)
+            * r["converter_feed_flow"][:, None]) @ sset.element_matrix.T
+    scale = feed[ok].max(axis=-1, keepdims=True)
+    assert np.max(np.abs(outflow[ok] - inflow[ok]) / scale) < 1e-9
 
 
 def test_production_at_capacity_and_no_nan(batch):

@@ -70,3 +70,4 @@ def test_bad_arguments():
         wegstein(g, b, max_iter=0)
     with pytest.raises(InputError, match="jacobian must be"):
         broyden(g, b, jacobian="exact")
+

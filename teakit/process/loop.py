@@ -140,6 +140,7 @@ def broyden(
     g_jacobian=None,
     H0: np.ndarray | None = None,
     keep: dict | None = None,
+    stall: int | None = None,
 ):
     """Solve x = g(x) for a batch by Broyden's method on f(x) = g(x) - x.
 
@@ -194,6 +195,9 @@ def broyden(
     active = np.ones(B, dtype=bool)
     halted = np.zeros(B, dtype=bool)
     resid = np.full(B, np.inf)
+    best = np.full(B, np.inf)
+    since_best = np.zeros(B, dtype=int)
+    full_step = np.zeros(B, dtype=bool)
     info_store: dict[str, np.ndarray] = {}
     it = 0
     for it in range(1, max_iter + 1):
@@ -212,6 +216,13 @@ def broyden(
         err = np.max(np.abs(gx - x[idx]), axis=-1) / np.maximum(np.max(np.abs(gx), axis=-1), 1e-300)
         resid[idx] = err
         done = err < tol
+        # Stagnation: a member whose residual has not halved for ``stall`` iterations stops
+        # (reported as not converged) instead of using up the iteration bound.
+        # Only full (uncut) steps count: a member still travelling at the step limit is not stuck.
+        improved = (err < 0.5 * best[idx]) | ~full_step[idx]
+        best[idx] = np.where(improved, err, best[idx])
+        since_best[idx] = np.where(improved, 0, since_best[idx] + 1)
+        stalled = since_best[idx] >= stall if stall else np.zeros(idx.size, dtype=bool)
         halt = np.asarray(info.get("halt", np.zeros(idx.size, bool))) if isinstance(info, dict) else np.zeros(idx.size, bool)
         # Broyden update of the inverse Jacobian where a previous step exists.
         hp = have_prev[idx]
@@ -229,6 +240,7 @@ def broyden(
         # a tenth of its value instead (a species with no source decays to zero that way).
         big = np.max(np.abs(step), axis=-1) / max_step
         alpha = np.minimum(1.0, 1.0 / np.maximum(big, 1e-300))
+        full_step[idx] = alpha >= 1.0
         u_new = u + alpha[:, None] * step
         u_new = np.where(u_new < 0.0, 0.1 * u, u_new)
         f_prev[idx] = f
@@ -236,6 +248,7 @@ def broyden(
         have_prev[idx] = True
         x_new = np.where(done[:, None], gx, u_new * sc[idx])
         x[idx] = x_new
+        halt = halt | stalled
         stop = done | halt
         halted[idx[halt & ~done]] = True
         active[idx[stop]] = False
