@@ -195,6 +195,7 @@ def broyden(
     active = np.ones(B, dtype=bool)
     halted = np.zeros(B, dtype=bool)
     resid = np.full(B, np.inf)
+    x_eval = x.copy()  # the last point at which g was evaluated, per member
     best = np.full(B, np.inf)
     since_best = np.zeros(B, dtype=int)
     full_step = np.zeros(B, dtype=bool)
@@ -205,6 +206,7 @@ def broyden(
         if idx.size == 0:
             break
         gx, info = g(x[idx], idx)
+        x_eval[idx] = x[idx]
         _store(info_store, info, idx, B)
         if it == 1 and callable(jacobian) and H0 is None:
             # A model-supplied estimate of dg/dx at x0 (e.g. from the physics of the loop).
@@ -256,6 +258,7 @@ def broyden(
     if keep is not None:
         keep["H"] = H
         keep["scale"] = sc
+        keep["x_eval"] = x_eval
     if raise_on_failure and (~converged).any():
         bad = np.flatnonzero(~converged)
         raise ConvergenceError(

@@ -33,6 +33,7 @@ production, never NaN.
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -240,13 +241,30 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
                         rate_params={"activity": d["catalyst_activity"][idx]})
         return conv.outlet, conv.beds, conv.interbed_duty
 
+    full_steps = steps
+    cache: dict[str, np.ndarray] = {}
+
+    def remember(idx, **arrays):
+        """Keep what an evaluation at full accuracy computed, per member (for the final figures)."""
+        for k, v in arrays.items():
+            if k not in cache:
+                cache[k] = np.zeros((B,) + v.shape[1:])
+            cache[k][idx] = v
+
     def loop_map(x, idx, steps=steps):
         R = x[:, :5]
         F = x[:, 5]
         recycle = Stream(SPECIES, R, T_sep[idx], P_sep[idx])
         mu = makeup_stream(F, idx)
         feed = mix(recycle.at(P=P[idx]), mu, P=P[idx])  # circulator temperature rise is small
-        eff, _, _ = converter(feed, idx, steps)
+        eff, bd, qi = converter(feed, idx, steps)
+        if steps == full_steps and idx.size == np.unique(idx).size:
+            remember(idx, feed_n=feed.n, feed_T=feed.T, eff_n=eff.n, eff_T=eff.T, q_inter=qi,
+                     bed_T=np.stack([b.profile_T for b in bd], axis=1),
+                     bed_xi=np.stack([b.profile_xi for b in bd], axis=1),
+                     bed_V=np.stack([b.profile_V for b in bd], axis=1),
+                     bed_Tmax=np.stack([b.T_max for b in bd], axis=1),
+                     bed_n_out=np.stack([b.outlet.n for b in bd], axis=1))
         tot = eff.total
         fl = _flash(T_sep[idx], P_sep[idx], eff.n / tot[:, None], kij)
         vap = fl.beta * tot
@@ -304,18 +322,22 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
     growing = info.get("growing", np.zeros(B, bool)).astype(bool)
     status[~conv & ~no_liquid & ~runaway & growing] = "capacity not reached: recycle keeps growing"
     status[~conv & ~no_liquid & ~runaway & ~growing] = "recycle loop did not converge"
-    # Final pass at the converged tear for every figure.
-    idx = np.arange(B)
+    # Every figure from the last evaluation of each member (at keep["x_eval"]): the converter is
+    # not run again.
+    x = keep["x_eval"]
     R, F = x[:, :5], x[:, 5]
     recycle = Stream(SPECIES, R, T_sep, P_sep)
-    mu_supply = Stream(SPECIES, F[:, None] * y_mu, d["makeup_temperature"], d["makeup_pressure"])
     mu_power, mu_Tdis, mu_cool, mu_stages = compress_staged(
         F, d["makeup_temperature"], d["makeup_pressure"], P, y_mu, SPECIES, d["compressor_efficiency"], d["makeup_temperature"])
     y_rec = np.where(recycle.total[:, None] > 0, recycle.y, y_mu)  # a collapsed loop has no recycle
     circ_power, _, _, _ = compress_staged(
         recycle.total, T_sep, P_sep, P, y_rec, SPECIES, d["circulator_efficiency"], T_sep)
-    feed = mix(recycle.at(P=P), mu_supply.at(P=P), P=P)
-    eff, beds, q_inter = converter(feed, idx)
+    feed = Stream(SPECIES, cache["feed_n"], cache["feed_T"], P.copy())
+    eff = Stream(SPECIES, cache["eff_n"], cache["eff_T"], P.copy())
+    q_inter = cache["q_inter"]
+    beds = [_BedFigures(cache["bed_T"][:, j], cache["bed_xi"][:, j], cache["bed_V"][:, j],
+                        cache["bed_Tmax"][:, j], Stream(SPECIES, cache["bed_n_out"][:, j], cache["bed_T"][:, j, -1], P.copy()))
+            for j in range(N_BEDS)]
     H = lambda s: enthalpy_flow(s.n, s.T, sset)  # noqa: E731
     T_in1 = T_beds[:, 0]
     dTa = d["approach_temperature"]
@@ -444,6 +466,21 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
     }
     state = {"tear": x, "H": keep["H"], "scale": keep["scale"]}
     return ProcessResult("ammonia_loop", values, units, equipment, status.astype(str), profiles, state)
+
+
+@dataclass(frozen=True)
+class _BedFigures:
+    """What the final figures read from a bed (kept from the loop's last evaluation)."""
+
+    profile_T: np.ndarray
+    profile_xi: np.ndarray
+    profile_V: np.ndarray
+    T_max: np.ndarray
+    outlet: Stream
+
+    @property
+    def extent(self):
+        return self.profile_xi[:, -1]
 
 
 def _area(Q, U, dT1, dT2):
