@@ -31,7 +31,7 @@ from __future__ import annotations
 import numpy as np
 
 from teakit.errors import InputError
-from teakit.validation import check_fraction, check_positive, check_range
+from teakit.validation import check_fraction, check_positive, check_range, scalar_or_array
 
 __all__ = [
     "LANG_FACTORS",
@@ -46,10 +46,6 @@ __all__ = [
 #: Lang factors (Lang 1947-1948, quoted in Turton 4th ed. Ch. 7; from memory) [-].
 LANG_FACTORS = {"solids": 3.10, "solid-fluid": 3.63, "fluid": 4.74}
 
-
-def _out(a):
-    a = np.asarray(a, dtype=float)
-    return float(a) if a.ndim == 0 else a
 
 
 def _sum(name: str, costs, axis: int) -> np.ndarray:
@@ -84,7 +80,7 @@ def total_module_cost(C_BM, contingency=0.15, fee=0.03, axis: int = -1):
     """
     a_c = check_fraction("contingency", contingency)
     a_f = check_fraction("fee", fee)
-    return _out(_sum("C_BM", C_BM, axis) * (1.0 + a_c + a_f))
+    return scalar_or_array(_sum("C_BM", C_BM, axis) * (1.0 + a_c + a_f))
 
 
 def grassroots_cost(C_BM, C_BM_base, contingency=0.15, fee=0.03, auxiliary=0.50, axis: int = -1):
@@ -119,7 +115,7 @@ def grassroots_cost(C_BM, C_BM_base, contingency=0.15, fee=0.03, auxiliary=0.50,
     """
     a_x = check_fraction("auxiliary", auxiliary)
     tm = np.asarray(total_module_cost(C_BM, contingency, fee, axis))
-    return _out(tm + a_x * _sum("C_BM_base", C_BM_base, axis))
+    return scalar_or_array(tm + a_x * _sum("C_BM_base", C_BM_base, axis))
 
 
 def fixed_capital_investment(
@@ -180,7 +176,7 @@ def working_capital(FCI, fraction=0.15):
         Working capital [USD of the same cost year].
     """
     f = check_positive("FCI", FCI, unit="USD", allow_zero=True)
-    return _out(f * check_fraction("fraction", fraction))
+    return scalar_or_array(f * check_fraction("fraction", fraction))
 
 
 def capital_breakdown(
@@ -226,14 +222,14 @@ def capital_breakdown(
     )
     wc = np.asarray(working_capital(fci, working_capital_fraction))
     return {
-        "bare_module": _out(bm),
-        "contingency": _out(a_c * bm),
-        "fee": _out(a_f * bm),
-        "total_module": _out(tm),
-        "auxiliary_facilities": _out(fci - tm),
-        "fixed_capital": _out(fci),
-        "working_capital": _out(wc),
-        "total_capital": _out(fci + wc),
+        "bare_module": scalar_or_array(bm),
+        "contingency": scalar_or_array(a_c * bm),
+        "fee": scalar_or_array(a_f * bm),
+        "total_module": scalar_or_array(tm),
+        "auxiliary_facilities": scalar_or_array(fci - tm),
+        "fixed_capital": scalar_or_array(fci),
+        "working_capital": scalar_or_array(wc),
+        "total_capital": scalar_or_array(fci + wc),
     }
 
 
@@ -271,4 +267,4 @@ def lang_estimate(delivered_equipment_cost, plant_type: str = "fluid", factor=No
         f = LANG_FACTORS[plant_type]
     else:
         f = check_range("factor", factor, 1.0, 10.0)
-    return _out(_sum("delivered_equipment_cost", delivered_equipment_cost, axis) * f)
+    return scalar_or_array(_sum("delivered_equipment_cost", delivered_equipment_cost, axis) * f)

@@ -50,7 +50,7 @@ from teakit.costing._range import RANGE_FACTOR, apply_range_policy
 from teakit.costing.escalation import TURTON_CEPCI_BASIS, _as_index
 from teakit.data import load_table
 from teakit.errors import InputError
-from teakit.validation import check_positive, check_range
+from teakit.validation import check_positive, check_range, scalar_or_array
 
 __all__ = [
     "VESSEL_CORROSION_ALLOWANCE",
@@ -83,10 +83,6 @@ _VESSEL_VACUUM_BARG = -0.5
 _VESSEL_VACUUM_FP = 1.25
 _FULL_VACUUM_BARG = -1.0
 
-
-def _out(a):
-    a = np.asarray(a, dtype=float)
-    return float(a) if a.ndim == 0 else a
 
 
 @functools.cache
@@ -258,7 +254,7 @@ def purchased_cost(kind: str, capacity, parallel: bool = True):
     n = _n_units(row, a) if parallel else np.ones_like(a)
     x = np.log10(a / n)
     logc = row["K1"] + row["K2"] * x + row["K3"] * x * x
-    return _out(n * 10.0**logc)
+    return scalar_or_array(n * 10.0**logc)
 
 
 def _pressure_rows(kind: str, pressure_on: str) -> tuple[str, pd.DataFrame]:
@@ -328,7 +324,7 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
     p = check_range("P_barg", P_barg, _FULL_VACUUM_BARG, np.inf, unit="barg")
     method = rows["method"].iloc[0]
     if method == "none":
-        return _out(np.ones_like(p))
+        return scalar_or_array(np.ones_like(p))
     hard = rows["P_hard_barg"].dropna()
     if method == "vessel":
         if D is None:
@@ -347,7 +343,7 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
             f"{_SOURCE_P} (vessel thickness formula)",
             hard_high=float(hard.iloc[0]) if hard.size else top * RANGE_FACTOR,
         )
-        return _out(_vessel_fp(p, d))
+        return scalar_or_array(_vessel_fp(p, d))
     kpa = rows["P_variable"].iloc[0] == "kPa"
     pv = p * 100.0 if kpa else p
     unit = "kPa" if kpa else "barg"
@@ -368,7 +364,7 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
     c1, c2, c3 = (np.nan_to_num(rows[c].to_numpy(dtype=float))[seg] for c in ("C1", "C2", "C3"))
     y = np.log10(np.where(pv > 0, pv, 1.0))
     logf = np.where((c1 == 0) & (c2 == 0) & (c3 == 0), 0.0, c1 + c2 * y + c3 * y * y)
-    return _out(10.0**logf)
+    return scalar_or_array(10.0**logf)
 
 
 def material_factor(kind: str, material: str) -> float:
@@ -541,16 +537,16 @@ def bare_module_cost(
         out["F_BM"] = fbm
     cbm = cbm * ratio
     if not details:
-        return _out(cbm)
+        return scalar_or_array(cbm)
     a = check_positive("capacity", capacity)
     n = _n_units(row, a / float(row["capacity_si_factor"])) if parallel else np.ones_like(a)
     out.update(
-        bare_module_cost=_out(cbm),
-        purchased_cost=_out(cp * ratio),
-        F_P=_out(fp),
-        n_units=_out(n),
-        unit_capacity=_out(a / n),
-        cepci=_out(np.asarray(ratio) * TURTON_CEPCI_BASIS),
+        bare_module_cost=scalar_or_array(cbm),
+        purchased_cost=scalar_or_array(cp * ratio),
+        F_P=scalar_or_array(fp),
+        n_units=scalar_or_array(n),
+        unit_capacity=scalar_or_array(a / n),
+        cepci=scalar_or_array(np.asarray(ratio) * TURTON_CEPCI_BASIS),
     )
     return out
 
@@ -590,7 +586,7 @@ def base_bare_module_cost(kind: str, capacity, cepci_target=None, *, parallel: b
         rows = _material_rows(kind)[0]
         cs = rows[rows["material"].str.lower() == "cs"]
         f = float(cs["F_BM"].iloc[0]) if len(cs) else float(rows["F_BM"].min())
-    return _out(cp * f * _target_ratio(cepci_target))
+    return scalar_or_array(cp * f * _target_ratio(cepci_target))
 
 
 def vessel_diameter(volume, L_over_D=3.0):
@@ -614,7 +610,7 @@ def vessel_diameter(volume, L_over_D=3.0):
     """
     v = check_positive("volume", volume, unit="m^3")
     r = check_range("L_over_D", L_over_D, 1.0, 20.0)
-    return _out((4.0 * v / (math.pi * r)) ** (1.0 / 3.0))
+    return scalar_or_array((4.0 * v / (math.pi * r)) ** (1.0 / 3.0))
 
 
 def vessel_cost_from_mass(mass_kg, cost_per_kg=10.0, installation_factor=4.07):
@@ -646,4 +642,4 @@ def vessel_cost_from_mass(mass_kg, cost_per_kg=10.0, installation_factor=4.07):
     m = check_positive("mass_kg", mass_kg, unit="kg")
     c = check_positive("cost_per_kg", cost_per_kg, unit="USD/kg")
     f = check_range("installation_factor", installation_factor, 1.0, 10.0)
-    return _out(m * c * f)
+    return scalar_or_array(m * c * f)

@@ -29,7 +29,7 @@ import numpy as np
 from teakit.costing._range import apply_range_policy
 from teakit.data import load_table
 from teakit.errors import InputError
-from teakit.validation import check_finite, check_positive
+from teakit.validation import check_finite, check_positive, scalar_or_array
 
 __all__ = [
     "TURTON_CEPCI_BASIS",
@@ -46,10 +46,6 @@ TURTON_CEPCI_BASIS = 397.0
 # an index value. The CEPCI (1957-59 = 100) has stayed below 1000 throughout its history.
 _YEAR_MIN, _YEAR_MAX = 1900, 2100
 
-
-def _out(a):
-    a = np.asarray(a, dtype=float)
-    return float(a) if a.ndim == 0 else a
 
 
 @functools.cache
@@ -100,7 +96,7 @@ def cepci(year):
             f"year = {bad:g} has no annual CEPCI in data/cepci.csv; available years: "
             + ", ".join(str(v) for v in years)
         )
-    return _out(values[pos])
+    return scalar_or_array(values[pos])
 
 
 def _as_index(name: str, value) -> np.ndarray:
@@ -146,7 +142,7 @@ def escalate(cost, from_index_or_year, to_index_or_year):
     c = check_finite("cost", cost)
     i_from = _as_index("from_index_or_year", from_index_or_year)
     i_to = _as_index("to_index_or_year", to_index_or_year)
-    return _out(c * i_to / i_from)
+    return scalar_or_array(c * i_to / i_from)
 
 
 def capacity_scale(cost_ref, capacity_ref, capacity, exponent=0.6):
@@ -196,4 +192,4 @@ def capacity_scale(cost_ref, capacity_ref, capacity, exponent=0.6):
         "(-)",
         "the six-tenths rule (common practice, about a factor of 10 either way)",
     )
-    return _out(c * ratio**n)
+    return scalar_or_array(c * ratio**n)

@@ -30,7 +30,7 @@ import numpy as np
 import pandas as pd
 
 from teakit.errors import InputError
-from teakit.validation import check_finite, check_positive, check_range
+from teakit.validation import check_finite, check_positive, check_range, scalar_or_array
 
 __all__ = [
     "DEFAULT_OPERATING_HOURS",
@@ -100,10 +100,6 @@ _S_PER_H = 3600.0
 _W_PER_KW = 1e3
 
 
-def _out(a):
-    a = np.asarray(a, dtype=float)
-    return float(a) if a.ndim == 0 else a
-
 
 def _hours(hours) -> np.ndarray:
     return check_range("hours", hours, 0.0, HOURS_PER_YEAR, unit="h/yr", inclusive=(False, True))
@@ -129,7 +125,7 @@ def operating_hours(availability):
         Operating hours [h/yr].
     """
     a = check_range("availability", availability, 0.0, 1.0, inclusive=(False, True))
-    return _out(a * HOURS_PER_YEAR)
+    return scalar_or_array(a * HOURS_PER_YEAR)
 
 
 def electricity_cost(power_W, price_USD_per_kWh, hours=DEFAULT_OPERATING_HOURS):
@@ -155,7 +151,7 @@ def electricity_cost(power_W, price_USD_per_kWh, hours=DEFAULT_OPERATING_HOURS):
     """
     w = check_positive("power_W", power_W, unit="W", allow_zero=True)
     p = check_positive("price_USD_per_kWh", price_USD_per_kWh, unit="USD/kWh", allow_zero=True)
-    return _out(w / _W_PER_KW * p * _hours(hours))
+    return scalar_or_array(w / _W_PER_KW * p * _hours(hours))
 
 
 def heat_cost(duty_W, price_USD_per_GJ, efficiency=1.0, hours=DEFAULT_OPERATING_HOURS):
@@ -186,7 +182,7 @@ def heat_cost(duty_W, price_USD_per_GJ, efficiency=1.0, hours=DEFAULT_OPERATING_
     q = check_positive("duty_W", duty_W, unit="W", allow_zero=True)
     p = check_positive("price_USD_per_GJ", price_USD_per_GJ, unit="USD/GJ", allow_zero=True)
     eta = check_range("efficiency", efficiency, 0.0, 1.0, inclusive=(False, True))
-    return _out(q / eta * _S_PER_H * _hours(hours) / _J_PER_GJ * p)
+    return scalar_or_array(q / eta * _S_PER_H * _hours(hours) / _J_PER_GJ * p)
 
 
 def cooling_water_cost(duty_W, price_USD_per_GJ, hours=DEFAULT_OPERATING_HOURS):
@@ -262,7 +258,7 @@ def catalyst_cost(volume_m3, bulk_density_kg_m3, price_USD_per_kg, life_yr):
     rho = check_positive("bulk_density_kg_m3", bulk_density_kg_m3, unit="kg/m^3")
     p = check_positive("price_USD_per_kg", price_USD_per_kg, unit="USD/kg", allow_zero=True)
     life = check_positive("life_yr", life_yr, unit="yr")
-    return _out(v * rho * p / life)
+    return scalar_or_array(v * rho * p / life)
 
 
 def raw_material_cost(flow_kg_s, price_USD_per_kg, hours=DEFAULT_OPERATING_HOURS):
@@ -286,7 +282,7 @@ def raw_material_cost(flow_kg_s, price_USD_per_kg, hours=DEFAULT_OPERATING_HOURS
     """
     m = check_positive("flow_kg_s", flow_kg_s, unit="kg/s", allow_zero=True)
     p = check_positive("price_USD_per_kg", price_USD_per_kg, unit="USD/kg", allow_zero=True)
-    return _out(m * _S_PER_H * _hours(hours) * p)
+    return scalar_or_array(m * _S_PER_H * _hours(hours) * p)
 
 
 def product_revenue(flow_kg_s, price_USD_per_kg, hours=DEFAULT_OPERATING_HOURS):
@@ -331,7 +327,7 @@ def emissions_cost(mass_kg_per_yr, price_USD_per_t):
     """
     m = check_positive("mass_kg_per_yr", mass_kg_per_yr, unit="kg/yr", allow_zero=True)
     p = check_positive("price_USD_per_t", price_USD_per_t, unit="USD/t", allow_zero=True)
-    return _out(m / 1000.0 * p)
+    return scalar_or_array(m / 1000.0 * p)
 
 
 def operators_per_shift(n_nonparticulate, n_particulate=0):
@@ -354,7 +350,7 @@ def operators_per_shift(n_nonparticulate, n_particulate=0):
     """
     nnp = check_positive("n_nonparticulate", n_nonparticulate, allow_zero=True)
     npart = check_positive("n_particulate", n_particulate, allow_zero=True)
-    return _out(np.sqrt(6.29 + 31.7 * npart**2 + 0.23 * nnp))
+    return scalar_or_array(np.sqrt(6.29 + 31.7 * npart**2 + 0.23 * nnp))
 
 
 def operating_labour_cost(
@@ -393,7 +389,7 @@ def operating_labour_cost(
     hired = np.asarray(operators_per_shift(n_nonparticulate, n_particulate)) * k
     if round_up:
         hired = np.ceil(hired - 1e-9)
-    return _out(hired * s)
+    return scalar_or_array(hired * s)
 
 
 def cost_of_manufacture(FCI, C_OL, C_UT, C_WT, C_RM, depreciation=False):
@@ -429,7 +425,7 @@ def cost_of_manufacture(FCI, C_OL, C_UT, C_WT, C_RM, depreciation=False):
     ol = _money("C_OL", C_OL)
     ut, wt, rm = _money("C_UT", C_UT), _money("C_WT", C_WT), _money("C_RM", C_RM)
     a = 0.180 + DEPRECIATION_FRACTION if depreciation else 0.180
-    return _out(a * fci + 2.73 * ol + 1.23 * (ut + wt + rm))
+    return scalar_or_array(a * fci + 2.73 * ol + 1.23 * (ut + wt + rm))
 
 
 def com_breakdown(FCI, C_OL, C_UT, C_WT, C_RM) -> dict:
@@ -470,10 +466,10 @@ def com_breakdown(FCI, C_OL, C_UT, C_WT, C_RM) -> dict:
     }
     for name, (f_fci, f_ol, f_com) in TABLE_8_2.items():
         items[name] = f_fci * fci + f_ol * ol + f_com * com
-    out = {k: _out(v) for k, v in items.items()}
+    out = {k: scalar_or_array(v) for k, v in items.items()}
     for g, names in _GROUPS.items():
-        out[g] = _out(sum(items[n] for n in names))
-    out["COM_d"] = _out(com)
+        out[g] = scalar_or_array(sum(items[n] for n in names))
+    out["COM_d"] = scalar_or_array(com)
     return out
 
 
@@ -528,7 +524,7 @@ def operating_breakdown(
         for k, v in g.items():
             if k in out:
                 raise InputError(f"item name {k!r} is used twice in the operating breakdown")
-            out[k] = _out(v)
+            out[k] = scalar_or_array(v)
 
     def total(g):
         return sum(groups[g].values(), np.asarray(0.0))
@@ -550,7 +546,7 @@ def operating_breakdown(
     for k, v in summary.items():
         if k in out:
             raise InputError(f"item name {k!r} clashes with a total of the operating breakdown")
-        out[k] = _out(v)
+        out[k] = scalar_or_array(v)
     return out
 
 

@@ -67,6 +67,16 @@ METHODS = ("average-z", "peng-robinson", "polytropic")
 T_DISCHARGE_MAX = 423.15
 
 
+def _head(T_in, pressure_ratio, exponent, Z, name):
+    """Z R T1 x/(x-1) [r^((x-1)/x) - 1] for an exponent x (k or n), with the checks of both heads."""
+    T_in = check_positive("T_in", T_in, "K")
+    r = check_range("pressure_ratio", pressure_ratio, 1.0, np.inf)
+    x = check_range(name, exponent, 1.0, np.inf, inclusive=(False, True))
+    Z = check_positive("Z", Z)
+    e = (x - 1.0) / x
+    return scalar_or_array(Z * R * T_in / e * (r**e - 1.0))
+
+
 def isentropic_head(T_in, pressure_ratio, k, Z=1.0):
     """Ideal-gas isentropic head per mole, scaled by a compressibility factor.
 
@@ -88,12 +98,7 @@ def isentropic_head(T_in, pressure_ratio, k, Z=1.0):
     float or ndarray
         Isentropic work [J/mol].
     """
-    T_in = check_positive("T_in", T_in, "K")
-    r = check_range("pressure_ratio", pressure_ratio, 1.0, np.inf)
-    k = check_range("k", k, 1.0, np.inf, inclusive=(False, True))
-    Z = check_positive("Z", Z)
-    e = (k - 1.0) / k
-    return scalar_or_array(Z * R * T_in / e * (r**e - 1.0))
+    return _head(T_in, pressure_ratio, k, Z, "k")
 
 
 def polytropic_head(T_in, pressure_ratio, n, Z=1.0):
@@ -117,12 +122,7 @@ def polytropic_head(T_in, pressure_ratio, n, Z=1.0):
     float or ndarray
         Polytropic head [J/mol].
     """
-    T_in = check_positive("T_in", T_in, "K")
-    r = check_range("pressure_ratio", pressure_ratio, 1.0, np.inf)
-    n = check_range("n", n, 1.0, np.inf, inclusive=(False, True))
-    Z = check_positive("Z", Z)
-    e = (n - 1.0) / n
-    return scalar_or_array(Z * R * T_in / e * (r**e - 1.0))
+    return _head(T_in, pressure_ratio, n, Z, "n")
 
 
 @dataclass(frozen=True)

@@ -41,7 +41,7 @@ from teakit.equipment.exchanger import exchanger_area
 from teakit.equipment.refrigeration import refrigeration_power
 from teakit.equipment.vessel import allowable_stress, shell_thickness_detail, vessel_mass
 from teakit.errors import InputError
-from teakit.process.cases.common import Spec, compress_staged, resolve
+from teakit.process.cases.common import Spec, compress_staged, resolve_case
 from teakit.process.loop import broyden
 from teakit.process.reactor import multibed
 from teakit.process.result import ProcessResult
@@ -168,13 +168,7 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
     InputError
         For unknown names or values outside their ranges (the message names them).
     """
-    dec, B1 = resolve(decisions, DECISIONS, "decision")
-    phy, B2 = resolve(physics, PHYSICS, "physics parameter")
-    try:
-        B = int(np.broadcast_shapes((B1,), (B2,))[0])
-    except ValueError:
-        raise InputError(f"decisions ({B1} members) and physics ({B2}) do not broadcast") from None
-    d = {k: np.broadcast_to(v, (B,)).copy() for k, v in {**dec, **phy}.items()}
+    d, B = resolve_case(decisions, physics, DECISIONS, PHYSICS)
     frac2_total = d["bed1_fraction"] + d["bed2_fraction"]
     if np.any(frac2_total >= 0.95):
         raise InputError("bed1_fraction + bed2_fraction must leave at least 5 % of the catalyst for bed 3")

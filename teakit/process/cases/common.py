@@ -12,7 +12,7 @@ from teakit.errors import InputError
 from teakit.units import to_si
 from teakit.validation import check_finite
 
-__all__ = ["Spec", "compress_staged", "resolve"]
+__all__ = ["Spec", "compress_staged", "resolve", "resolve_case"]
 
 
 @dataclass(frozen=True)
@@ -56,6 +56,17 @@ def resolve(values: Mapping | None, specs: Mapping[str, Spec], kind: str) -> tup
         shapes = {k: v.shape for k, v in out.items() if v.shape != (1,)}
         raise InputError(f"{kind} arrays do not broadcast to one batch: {shapes}") from None
     return {k: np.broadcast_to(v, (B,)).copy() for k, v in out.items()}, B
+
+
+def resolve_case(decisions, physics, decision_specs, physics_specs) -> tuple[dict, int]:
+    """Decisions and physics parameters of a case as SI arrays of one batch shape (B,)."""
+    dec, B1 = resolve(decisions, decision_specs, "decision")
+    phy, B2 = resolve(physics, physics_specs, "physics parameter")
+    try:
+        B = int(np.broadcast_shapes((B1,), (B2,))[0])
+    except ValueError:
+        raise InputError(f"decisions ({B1} members) and physics ({B2}) do not broadcast") from None
+    return {k: np.broadcast_to(v, (B,)).copy() for k, v in {**dec, **phy}.items()}, B
 
 
 def compress_staged(flow, T_in, P_in, P_out, y, species, efficiency, T_intercool, max_ratio=3.0):

@@ -86,7 +86,7 @@ from teakit.equipment.exchanger import exchanger_area
 from teakit.equipment.vessel import allowable_stress, shell_thickness_detail, vessel_mass
 from teakit.errors import InputError, RangeWarning
 from teakit.process.bed import P_FLOOR, ErgunBed, run_bed
-from teakit.process.cases.common import Spec, compress_staged, resolve
+from teakit.process.cases.common import Spec, compress_staged, resolve_case
 from teakit.process.result import ProcessResult
 from teakit.process.streams import Stream, enthalpy_flow, heat_capacity_flow
 from teakit.thermo import ideal_gas
@@ -278,13 +278,7 @@ def so2_converter(decisions: Mapping | None = None, physics: Mapping | None = No
     """
     if not (isinstance(steps, int | np.integer) and 4 <= steps <= 2000):
         raise InputError(f"steps must be a whole number from 4 to 2000, got {steps!r}")
-    dec, B1 = resolve(decisions, DECISIONS, "decision")
-    phy, B2 = resolve(physics, PHYSICS, "physics parameter")
-    try:
-        B = int(np.broadcast_shapes((B1,), (B2,))[0])
-    except ValueError:
-        raise InputError(f"decisions ({B1} members) and physics ({B2}) do not broadcast") from None
-    d = {k: np.broadcast_to(v, (B,)).copy() for k, v in {**dec, **phy}.items()}
+    d, B = resolve_case(decisions, physics, DECISIONS, PHYSICS)
     ip = d["interpass_absorption"]
     if np.any(ip != np.round(ip)):
         bad = ip[ip != np.round(ip)][0]
