@@ -104,14 +104,18 @@ def wegstein(
         active[idx[done]] = False
     converged = ~active
     if not converged.all() and raise_on_failure:
-        bad = np.flatnonzero(~converged)
-        raise ConvergenceError(
-            "recycle loop did not converge (residual: max relative change of the tear stream)",
-            members=bad,
-            residuals=resid[bad],
-            iterations=it,
-        )
+        _raise_unconverged(converged, resid, it)
     return x, info_store, converged, it
+
+
+def _raise_unconverged(converged, resid, iterations):
+    bad = np.flatnonzero(~converged)
+    raise ConvergenceError(
+        "recycle loop did not converge (residual: max relative change of the tear stream)",
+        members=bad,
+        residuals=resid[bad],
+        iterations=iterations,
+    )
 
 
 def _store(store: dict, info, idx, B):
@@ -168,16 +172,14 @@ def broyden(
     else:
         sc = np.broadcast_to(np.asarray(scale, float), (B, m)).copy()
     sc = np.maximum(sc, 1e-300)
-    if not callable(jacobian) and jacobian not in ("finite-difference", "identity"):
-        raise InputError(
-            f"jacobian must be 'finite-difference', 'identity' or a callable, got {jacobian!r}"
-        )
+    if jacobian not in ("finite-difference", "identity"):
+        raise InputError(f"jacobian must be 'finite-difference' or 'identity', got {jacobian!r}")
     H = np.broadcast_to(-np.eye(m), (B, m, m)).copy()
     if H0 is not None:
         H = np.array(H0, dtype=float).reshape(B, m, m)
         bad = ~np.all(np.isfinite(H), axis=(1, 2))
         H[bad] = -np.eye(m)
-    elif isinstance(jacobian, str) and jacobian == "finite-difference":
+    elif jacobian == "finite-difference":
         # g at x0 and at x0 + h e_k (scaled), every member and direction in one call.
         idx_all = np.arange(B)
         h = fd_step
@@ -201,18 +203,13 @@ def broyden(
     full_step = np.zeros(B, dtype=bool)
     info_store: dict[str, np.ndarray] = {}
     it = 0
-    for it in range(1, max_iter + 1):
+    for it in range(1, max_iter + 1):  # noqa: B007 (it is returned)
         idx = np.flatnonzero(active)
         if idx.size == 0:
             break
         gx, info = g(x[idx], idx)
         x_eval[idx] = x[idx]
         _store(info_store, info, idx, B)
-        if it == 1 and callable(jacobian) and H0 is None:
-            # A model-supplied estimate of dg/dx at x0 (e.g. from the physics of the loop).
-            Jf = jacobian(x[idx], gx, info) * sc[idx][:, None, :] / sc[idx][:, :, None] - np.eye(m)[None]
-            good = np.all(np.isfinite(Jf), axis=(1, 2)) & (np.abs(np.linalg.det(Jf)) > 1e-12)
-            H[idx[good]] = np.linalg.inv(Jf[good])
         u = x[idx] / sc[idx]
         f = (gx - x[idx]) / sc[idx]
         err = np.max(np.abs(gx - x[idx]), axis=-1) / np.maximum(np.max(np.abs(gx), axis=-1), 1e-300)
@@ -260,11 +257,5 @@ def broyden(
         keep["scale"] = sc
         keep["x_eval"] = x_eval
     if raise_on_failure and (~converged).any():
-        bad = np.flatnonzero(~converged)
-        raise ConvergenceError(
-            "recycle loop did not converge (residual: max relative change of the tear stream)",
-            members=bad,
-            residuals=resid[bad],
-            iterations=it,
-        )
+        _raise_unconverged(converged, resid, it)
     return x, info_store, converged, it
