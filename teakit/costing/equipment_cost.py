@@ -102,10 +102,23 @@ def _row(kind: str) -> pd.Series:
             f"kind = {kind!r} is not an equipment kind of data/turton_purchased_cost.csv; "
             f"valid kinds: {', '.join(pc.index)}"
         )
-    return pc.loc[kind]
+    return _row_cached(kind)
+
+
+# Table lookups are memoised (a study prices thousands of batches with the same kinds): the
+# cached objects are never mutated by their callers.
+@functools.cache
+def _row_cached(kind: str) -> pd.Series:
+    return _tables()[0].loc[kind]
 
 
 def _material_rows(kind: str) -> tuple[pd.DataFrame, str, str]:
+    _row(kind)
+    return _material_rows_cached(kind)
+
+
+@functools.cache
+def _material_rows_cached(kind: str) -> tuple[pd.DataFrame, str, str]:
     """Rows of F_M (B1B2 kinds) or F_BM (FBM kinds) for ``kind``, the value column and table."""
     row = _row(kind)
     _, _, fm, _, fbm = _tables()
@@ -117,16 +130,24 @@ def _material_rows(kind: str) -> tuple[pd.DataFrame, str, str]:
 
 
 def _lookup_material(kind: str, material: str) -> float:
-    rows, col, name = _material_rows(kind)
-    names = list(rows["material"])
     if isinstance(material, str):
-        hit = [i for i, m in enumerate(names) if m.lower() == material.strip().lower()]
-        if hit:
-            return float(rows[col].iloc[hit[0]])
+        value = _material_factors(kind).get(material.strip().lower())
+        if value is not None:
+            return value
+    rows, _, name = _material_rows(kind)
     raise InputError(
         f"material = {material!r} is not listed for kind {kind!r} in data/{name}.csv; "
-        f"valid materials: {', '.join(names)}"
+        f"valid materials: {', '.join(rows['material'])}"
     )
+
+
+@functools.cache
+def _material_factors(kind: str) -> dict[str, float]:
+    rows, col, _ = _material_rows(kind)
+    out: dict[str, float] = {}
+    for m, v in zip(rows["material"], rows[col], strict=True):
+        out.setdefault(m.lower(), float(v))  # first listing wins
+    return out
 
 
 def equipment_kinds() -> pd.DataFrame:
@@ -258,6 +279,14 @@ def purchased_cost(kind: str, capacity, parallel: bool = True):
 
 
 def _pressure_rows(kind: str, pressure_on: str) -> tuple[str, pd.DataFrame]:
+    _row(kind)
+    if not isinstance(pressure_on, str):
+        raise InputError(f"pressure_on must be 'both' or 'tube', got {pressure_on!r}")
+    return _pressure_rows_cached(kind, pressure_on)
+
+
+@functools.cache
+def _pressure_rows_cached(kind: str, pressure_on: str) -> tuple[str, pd.DataFrame]:
     row = _row(kind)
     pf = _tables()[1]
     pclass = row["pressure_class"]

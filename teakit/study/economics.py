@@ -22,6 +22,7 @@ the study layer treats them as infeasible.
 
 from __future__ import annotations
 
+import functools
 import warnings
 from collections.abc import Mapping
 
@@ -93,6 +94,13 @@ _CAPACITY = {"vessel": "volume", "tower": "volume", "hx_": "area", "compressor":
              "heater": "duty", "fan": "gas_flow", "pump": "power"}
 
 
+@functools.cache
+def _kind_limits() -> dict[str, tuple[float, float]]:
+    """Capacity range [SI] of every costed equipment kind (read once)."""
+    k = equipment_kinds()
+    return {kind: (float(r["capacity_min_SI"]), float(r["capacity_max_SI"])) for kind, r in k.iterrows()}
+
+
 def _capacity_key(kind: str) -> str:
     for prefix, key in _CAPACITY.items():
         if kind.startswith(prefix):
@@ -137,15 +145,15 @@ def plant_economics(process, economics: Mapping | None = None, *, with_metrics: 
         # Loop equipment above a correlation's pressure range warns once per call; the study
         # reports correlation ranges in its result instead of flooding the notebook.
         warnings.simplefilter("ignore", RangeWarning)
-        kinds = equipment_kinds()
+        limits = _kind_limits()
         for name, item in process.equipment.items():
             kind = item["kind"]
             cap = np.asarray(item[_capacity_key(kind)], dtype=float)
             live = cap > 0
             # The cost tables accept [min/10, 10 max] (10 parallel units at most): a member
             # whose item lies beyond is priced at the limit and flagged, not an error.
-            lo = kinds.loc[kind, "capacity_min_SI"] / 10.0
-            hi = kinds.loc[kind, "capacity_max_SI"] * 10.0
+            lo = limits[kind][0] / 10.0
+            hi = limits[kind][1] * 10.0
             beyond = live & ((cap > hi) | (cap < lo))
             status = np.where(beyond & (status == "ok"), f"{name} beyond the cost correlation's range", status)
             cap_safe = np.where(live, np.clip(cap, lo, hi), lo)  # absent items: any valid size, cost zeroed
@@ -154,8 +162,7 @@ def plant_economics(process, economics: Mapping | None = None, *, with_metrics: 
             c = bare_module_cost(kind, cap_safe, P_barg, item.get("material", "CS"), D) * live
             c0 = base_bare_module_cost(kind, cap_safe) * live
             if kind.startswith("compressor"):
-                drive = np.clip(cap_safe / e["motor_efficiency"], kinds.loc[DRIVE, "capacity_min_SI"] / 10.0,
-                                kinds.loc[DRIVE, "capacity_max_SI"] * 10.0)
+                drive = np.clip(cap_safe / e["motor_efficiency"], limits[DRIVE][0] / 10.0, limits[DRIVE][1] * 10.0)
                 c = c + bare_module_cost(DRIVE, drive) * live
                 c0 = c0 + base_bare_module_cost(DRIVE, drive) * live
             cbm.append(c)

@@ -30,6 +30,49 @@ from teakit.units import to_si
 
 __all__ = ["OBJECTIVES", "Optimum", "Study"]
 
+#: Merit of a point violating a constraint: below every feasible objective (lexicographic order:
+#: feasible by objective, then infeasible by total relative violation, then process failures).
+_INFEASIBLE = -1e30
+#: Lattice of the unit decision box on which process evaluations are memoised (2^-24).
+_LATTICE = float(2**24)
+
+
+def _flatten(proc):
+    """Every numeric figure of a ProcessResult as columns of one matrix (N, q), and a template."""
+    n = len(proc)
+    cols, arrays = [], []
+    for k, v in proc.values.items():
+        a = np.asarray(v, dtype=float)
+        if a.shape == (n,):
+            cols.append(("v", k, None))
+            arrays.append(a)
+    consts = {}
+    for item, spec in proc.equipment.items():
+        consts[item] = {}
+        for f, v in spec.items():
+            if isinstance(v, str) or np.ndim(v) == 0:
+                consts[item][f] = v
+            else:
+                cols.append(("e", item, f))
+                arrays.append(np.asarray(v, dtype=float))
+    return np.stack(arrays, axis=1), {"case": proc.case, "units": proc.units, "cols": cols, "consts": consts}
+
+
+def _rebuild(Q, ok, template):
+    """A ProcessResult from a figure matrix of :func:`_flatten` (e.g. response-surface predictions)."""
+    from teakit.process.result import ProcessResult
+
+    if "nonneg" in template:
+        Q = np.where(template["nonneg"], np.maximum(Q, 0.0), Q)
+    values, equipment = {}, {item: dict(c) for item, c in template["consts"].items()}
+    for j, (kind, a, b) in enumerate(template["cols"]):
+        if kind == "v":
+            values[a] = Q[:, j]
+        else:
+            equipment[a][b] = Q[:, j]
+    status = np.where(ok, "ok", "process infeasible")
+    return ProcessResult(template["case"], values, template["units"], equipment, status)
+
 #: Objectives and their sense: +1 maximise, -1 minimise.
 OBJECTIVES = {"npv": 1.0, "annual_profit": 1.0, "irr": 1.0, "lcop": -1.0}
 
@@ -213,13 +256,7 @@ class Study:
         proc = fn(dec, phys, **kw)
         money = plant_economics(proc, econ, with_metrics=with_metrics)
         vals = {**proc.values, **{k: v for k, v in money.items() if not k.startswith("_") and k != "status"}}
-        margins = {}
-        for name, c in self._constraints.items():
-            if c.function is not None:
-                margins[name] = np.asarray(c.function(vals), dtype=float)
-            else:
-                v = vals[name]
-                margins[name] = (c.limit - v) if c.sense == "max" else (v - c.limit)
+        margins = self._margins(vals)
         status = money["status"]
         yld = np.where(status == "ok", self._info["yield"](proc.values), 0.0)
         return proc, vals, margins, status, yld
@@ -281,8 +318,13 @@ class Study:
         return np.where(ok, merit, -np.inf), obj, viol
 
     def optimize(self, parameters: Mapping | None = None, *, n_start: int = 128, starts: int = 3,
-                 seed: int = 0, tol: float = 2e-3, max_iter: int = 25, max_yield: bool = True):
+                 seed: int = 0, tol: float = 2e-3, max_iter: int = 30, max_yield: bool = True):
         """The profit-optimal decisions (and the maximum-yield point) for one or many parameter sets.
+
+        A global stage (a scrambled Sobol sample of the decision box, shared by all parameter sets
+        with equal physics) picks the best distinct starts; a batched compass search with pattern
+        moves refines each (see the module docstring). The profit and yield searches share
+        their process evaluations.
 
         Parameters
         ----------
@@ -291,13 +333,13 @@ class Study:
         n_start : int
             Sobol points of the first, global stage (rounded up to a power of 2).
         starts : int
-            Best distinct points refined by the batched pattern search.
+            Best distinct points refined by the local search.
         seed : int
             Seed of the scrambled Sobol sequence (results are reproducible).
         tol : float
-            Final pattern step, as a fraction of each decision's range [-].
+            Final trust radius, as a fraction of each decision's range [-].
         max_iter : int
-            Bound on pattern-search iterations.
+            Bound on local iterations (one batched process call each).
         max_yield : bool
             Also find the maximum-yield point.
 
@@ -306,36 +348,87 @@ class Study:
         Optimum or list of Optimum
             One per parameter set (a single Optimum when no array parameters are given).
         """
+        for name, v, lo_, hi_ in (("n_start", n_start, 2, 65536), ("starts", starts, 1, 64), ("max_iter", max_iter, 1, 1000)):
+            if not isinstance(v, int | np.integer) or not lo_ <= v <= hi_:
+                raise InputError(f"{name} must be a whole number from {lo_} to {hi_}, got {v!r}")
+        if not (isinstance(tol, float | int) and 1e-6 <= tol <= 0.5):
+            raise InputError(f"tol must be a fraction of the decision range in [1e-6, 0.5], got {tol!r}")
         _, par, P = self._arrays({}, parameters)
-        par_sets = [{k: v[i : i + 1] for k, v in par.items()} for i in range(P)]
-        best = self._optimize_sets(par, P, n_start, starts, seed, tol, max_iter, "objective")
+        targets = ["objective", "yield"] if max_yield else ["objective"]
+        found, n_eval = self._search(par, P, n_start=n_start, starts=starts, seed=seed, tol=tol,
+                                     max_iter=max_iter, targets=targets)
+        best = self._finish(found["objective"], par, P, n_eval)
+        if max_yield:
+            for o, y in zip(best, self._finish(found["yield"], par, P, n_eval), strict=True):
+                o.max_yield = y
+        return best[0] if P == 1 and not any(np.ndim(v) for v in (parameters or {}).values()) else best
+
+    def optimize_batch(self, parameters: Mapping, *, start: Mapping | Optimum | None = None,
+                       tol: float = 2e-3, max_iter: int = 30, seed: int = 0):
+        """Re-optimise the decisions for a batch of parameter sets; one row per set.
+
+        The uncertainty studies call this once per chunk of samples. Each set starts from
+        ``start`` (typically the deterministic optimum) and is refined by the local search alone;
+        sets with equal physics parameters share every process evaluation, so a batch that
+        varies only prices costs little more than one optimum.
+
+        Parameters
+        ----------
+        parameters : mapping
+            Name -> array (P,) of parameter values (SI); names not given stay nominal.
+        start : mapping or Optimum, optional
+            Starting decisions [SI]; default: a full :meth:`optimize` at nominal parameters.
+        tol, max_iter, seed
+            As for :meth:`optimize`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Per set: the optimal decisions and every figure of :meth:`evaluate` there (columns
+            with units), ``feasible`` and ``status``.
+        """
+        _, par, P = self._arrays({}, parameters)
+        if start is None:
+            start = self.optimize(max_yield=False)
+        if isinstance(start, Optimum):
+            start = start.decisions
+        x0 = {k: float(start.get(k, d.default)) for k, d in self._decisions.items()}
+        found, _ = self._search(par, P, n_start=2, starts=1, seed=seed, tol=tol, max_iter=max_iter,
+                                targets=["objective"], start=x0)
+        dec = {k: np.array([f[k] for f in found["objective"]]) for k in self._decisions}
+        return self.evaluate(dec, {k: np.asarray(v) for k, v in par.items()})
+
+    def _finish(self, found, par, P, n_eval):
+        """Evaluate the found decisions at full accuracy, in one batch, and describe each optimum."""
+        dec = {k: np.array([f[k] for f in found]) for k in self._decisions}
+        df = self.evaluate(dec, {k: np.asarray(v) for k, v in par.items()})
+        obj_col = next(c for c in df.columns if c.startswith(f"{self.objective} ["))
+        mcols = [c for c in df.columns if c.startswith("margin_")]
         out = []
-        yb = self._optimize_sets(par, P, n_start, starts, seed, tol, max_iter, "yield") if max_yield else None
         for i in range(P):
-            opt = self._finish(best[i], par_sets[i])
-            if yb is not None:
-                opt.max_yield = self._finish(yb[i], par_sets[i])
-            out.append(opt)
-        return out[0] if P == 1 and not any(np.ndim(v) for v in (parameters or {}).values()) else out
+            row = df.iloc[i]
+            di = {k: float(dec[k][i]) for k in self._decisions}
+            margins = {c[len("margin_"):].split(" [")[0]: row[c] for c in mcols}
+            active = [k for k, m in margins.items() if abs(m) <= 5e-3 * max(abs(self._constraints[k].limit), 1.0)]
+            for k in self.free:  # decisions held at a bound are reported too
+                dd = self._decisions[k]
+                span = dd.high - dd.low
+                if di[k] <= dd.low + 1e-3 * span:
+                    active.append(f"{k} at its lower bound")
+                elif di[k] >= dd.high - 1e-3 * span:
+                    active.append(f"{k} at its upper bound")
+            out.append(Optimum(di, float(row[obj_col]), row.to_dict(), active, bool(row["feasible"]), None,
+                               n_eval, self.objective))
+        return out
 
-    def _finish(self, found, par1):
-        u_dec, n_eval = found
-        df = self.evaluate(u_dec, {k: v[0] for k, v in par1.items()})
-        row = df.iloc[0]
-        dec = {k: float(u_dec[k][0]) if np.ndim(u_dec[k]) else float(u_dec[k]) for k in self._decisions}
-        obj = float(row[next(c for c in df.columns if c.startswith(f"{self.objective} ["))])
-        margins = {c[len("margin_"):].split(" [")[0]: row[c] for c in df.columns if c.startswith("margin_")}
-        active = [k for k, m in margins.items() if abs(m) <= 5e-3 * max(abs(self._constraints[k].limit), 1.0)]
-        for k in self.free:  # decisions held at a bound are reported too
-            dd = self._decisions[k]
-            span = dd.high - dd.low
-            if dec[k] <= dd.low + 1e-3 * span:
-                active.append(f"{k} at its lower bound")
-            elif dec[k] >= dd.high - 1e-3 * span:
-                active.append(f"{k} at its upper bound")
-        return Optimum(dec, obj, row.to_dict(), active, bool(row["feasible"]), None, n_eval, self.objective)
+    def _search(self, par, P, *, n_start, starts, seed, tol, max_iter, targets, start=None):
+        """Best decisions per parameter set and target (the search of the module docstring).
 
-    def _optimize_sets(self, par, P, n_start, starts, seed, tol, max_iter, target):
+        Physics groups (parameter sets with equal physics parameters) share every process
+        evaluation: the global Sobol stage and every coinciding step of all their tracks
+        (parameter sets x targets x starts), memoised on a lattice; the money is recomputed
+        exactly for each track from the stored process figures.
+        """
         from scipy.stats import qmc
 
         free = self.free
@@ -345,81 +438,195 @@ class Study:
         lo = np.array([self._decisions[k].low for k in free])
         hi = np.array([self._decisions[k].high for k in free])
         fixed = {k: dd.default for k, dd in self._decisions.items() if not dd.free}
-        m = int(np.ceil(np.log2(max(n_start, 2))))
-        U = qmc.Sobol(d, scramble=True, seed=seed).random_base2(m)
-        default_u = np.array([(self._decisions[k].default - lo[i]) / (hi[i] - lo[i]) for i, k in enumerate(free)])
-        U = np.vstack([default_u[None], U])
-        n0 = U.shape[0]
+        pnames = [k for k in par if self._parameters[k].kind == "physics"]
+        enames = [k for k in par if self._parameters[k].kind == "economics"]
+        keys = np.stack([np.asarray(par[k], float) for k in pnames], axis=1) if pnames else np.zeros((P, 1))
+        uniq, g_of_p = np.unique(keys, axis=0, return_inverse=True)
+        g_of_p = g_of_p.ravel()
+        G = len(uniq)
+        fn = self._info["function"]
+        kw = dict(self._info.get("search_options", {}))
+        template = {}
+
+        def physics(X, gi, warm):
+            x = lo + X * (hi - lo)
+            dec = {k: x[:, i] for i, k in enumerate(free)} | {k: np.full(len(X), v) for k, v in fixed.items()}
+            phys = {k: uniq[gi, j] for j, k in enumerate(pnames)}
+            proc = fn(dec, phys, **kw, **({"warm": warm} if warm else {}))
+            Q, tmpl = _flatten(proc)
+            tm = template.setdefault("t", tmpl)
+            # Figures never negative in any evaluation (powers, areas, flows) stay so on a surface.
+            tm["nonneg"] = tm.get("nonneg", np.ones(Q.shape[1], bool)) & np.all(Q[proc.ok] >= 0, axis=0)
+            return Q, proc.ok, proc.state
+
+        # Tracks: (parameter set, target, start).
+        tgt_code = {"objective": 0, "yield": 1}
+        tr_p, tr_tgt = [], []
+        for p in range(P):
+            for tg in targets:
+                tr_p += [p] * (starts if start is None else 1)
+                tr_tgt += [tgt_code[tg]] * (starts if start is None else 1)
+        tr_p = np.array(tr_p, int)
+        tr_tgt = np.array(tr_tgt, int)
+        need_metrics = self.objective in ("irr", "lcop")
+
+        def merit(Q, ok, t):
+            p = tr_p[t]
+            proc = _rebuild(Q, ok, template["t"])
+            econ = {k: np.asarray(par[k])[p] for k in enames}
+            money = plant_economics(proc, econ, with_metrics=need_metrics)
+            vals = {**proc.values, **{k: v for k, v in money.items() if not k.startswith("_") and k != "status"}}
+            margins = self._margins(vals)
+            good = money["status"] == "ok"
+            yld = np.where(good, self._info["yield"](proc.values), 0.0)
+            obj = OBJECTIVES[self.objective] * np.asarray(vals[self.objective], float)
+            m = np.where(tr_tgt[t] == 1, yld, obj)
+            viol = np.zeros(len(Q))
+            for name, mg in margins.items():
+                sc = max(abs(self._constraints[name].limit), 1.0)
+                viol += np.maximum(1e-4 * sc - mg, 0.0) / sc  # slack: stays feasible at full accuracy
+            m = np.where(np.isfinite(m), m, _INFEASIBLE)
+            return np.where(good & (viol == 0), m, np.where(good, _INFEASIBLE - viol, 2.0 * _INFEASIBLE))
+
+        # Physics evaluations, memoised per group on a fine lattice of the unit box: candidates
+        # that coincide (the same step of two price sets, a return to an earlier point, the
+        # profit and yield searches) are evaluated once.
+        cache = [dict() for _ in range(G)]
+        store = {"Q": [], "ok": [], "state": []}
         n_eval = 0
 
-        def run(u, p_idx, warm=None):
-            x = lo + u * (hi - lo)
-            dec = {k: x[:, i] for i, k in enumerate(free)} | {k: np.full(len(u), v) for k, v in fixed.items()}
-            pr = {k: v[p_idx] for k, v in par.items()}
-            proc, vals, margins, status, yld = self._run(dec, pr, len(u), self.objective in ("irr", "lcop"), warm, search=True)
-            # A small slack on every constraint during the coarser search keeps the optimum
-            # feasible when it is evaluated again at full accuracy.
-            merit, _, _ = self._merit(vals, margins, status, yld, target, slack=1e-4)
-            return merit, proc.state
+        def lookup(X, gi, warm_rows=None, warm=None):
+            """Row indices into the store of points X (N, d) of groups gi, evaluating misses."""
+            nonlocal n_eval
+            keys = [(int(gg), np.round(x * _LATTICE).astype(np.int64).tobytes()) for gg, x in zip(gi, X, strict=True)]
+            rows = np.empty(len(X), int)
+            miss, miss_keys = [], {}
+            for i, (gg, kk) in enumerate(keys):
+                r = cache[gg].get(kk)
+                if r is None:
+                    r = miss_keys.get((gg, kk))
+                    if r is None:
+                        miss_keys[(gg, kk)] = len(miss)
+                        miss.append(i)
+                    rows[i] = -1 - miss_keys[(gg, kk)]
+                else:
+                    rows[i] = r
+            if miss:
+                mi = np.array(miss)
+                w = None
+                if warm is not None and warm_rows is not None:
+                    w = {k: v[warm_rows[mi]] for k, v in warm.items()}
+                Q, ok, st = physics(X[mi], gi[mi], w)
+                n_eval += len(mi)
+                base = sum(len(q) for q in store["Q"])
+                store["Q"].append(Q)
+                store["ok"].append(ok)
+                store["state"].append(st)
+                for j, i in enumerate(miss):
+                    cache[keys[i][0]][keys[i][1]] = base + j
+                rows = np.where(rows < 0, base + (-1 - rows), rows)
+            return rows
 
-        # Stage 1: the Sobol sample for every parameter set (physics shared where equal).
-        merit0, state0 = run(np.tile(U, (P, 1)), np.repeat(np.arange(P), n0))
-        merit0 = merit0.reshape(P, n0)
-        n_eval += P * n0
-        # Best distinct starts per set (at least 0.1 apart in the unit box).
-        S = []
-        for p in range(P):
-            order = np.argsort(-merit0[p])
-            chosen = []
-            for j in order:
-                if not np.isfinite(merit0[p, j]):
-                    break
-                if all(np.max(np.abs(U[j] - U[c])) > 0.1 for c in chosen):
-                    chosen.append(j)
-                if len(chosen) == starts:
-                    break
-            chosen = chosen or [int(order[0])]
-            chosen += [chosen[0]] * (starts - len(chosen))
-            S.append(U[chosen])
-        X = np.stack(S)  # (P, starts, d)
-        pick = np.array([[p * n0 + int(np.argmin(np.abs(U - X[p, s]).sum(axis=1))) for s in range(starts)] for p in range(P)])
-        F = merit0.ravel()[pick]
-        # Solver state of each centre (a recycle loop's converged tear), to warm-start the stencil.
-        centre = {k: v[pick] for k, v in state0.items()}  # (P, starts, ...)
-        step = np.full((P, starts), 0.1)
-        E = np.vstack([np.eye(d), -np.eye(d)])  # compass directions
-        move = np.zeros((P, starts, d))  # last accepted displacement (Hooke-Jeeves pattern)
-        nc = 2 * d + 2
+        def gather(rows):
+            Q = np.concatenate(store["Q"])
+            ok = np.concatenate(store["ok"])
+            st = {k: np.concatenate([s_[k] for s_ in store["state"]]) for k in store["state"][0]} if store["state"][0] else {}
+            return Q[rows], ok[rows], {k: v[rows] for k, v in st.items()}
+
+        T = len(tr_p)
+        tg = g_of_p[tr_p]
+        if start is None:
+            m = int(np.ceil(np.log2(max(n_start, 2))))
+            U = qmc.Sobol(d, scramble=True, seed=seed).random_base2(m)
+            default_u = np.array([(self._decisions[k].default - lo[i]) / (hi[i] - lo[i]) for i, k in enumerate(free)])
+            U = np.vstack([default_u[None], U])
+            n0 = len(U)
+            rows0 = lookup(np.tile(U, (G, 1)), np.repeat(np.arange(G), n0)).reshape(G, n0)
+            # Best distinct starts of every (set, target) among its group's sample.
+            lead = np.arange(0, T, starts)
+            Q0, ok0, _ = gather(rows0[tg[lead]].ravel())
+            f0 = merit(Q0, ok0, np.repeat(lead, n0)).reshape(-1, n0)
+            sidx = []
+            for row in f0:
+                chosen = []
+                for j in np.argsort(-row):
+                    if all(np.max(np.abs(U[j] - U[c])) > 0.1 for c in chosen):
+                        chosen.append(j)
+                    if len(chosen) == starts:
+                        break
+                chosen += [chosen[0]] * (starts - len(chosen))
+                sidx.append(chosen)
+            sidx = np.array(sidx).ravel()  # (T,)
+            X = U[sidx]
+            rows = rows0[tg, sidx]
+            F = np.take_along_axis(f0, sidx.reshape(-1, starts), axis=1).ravel()
+            step = np.full(T, 0.1)
+        else:
+            x0 = np.array([(start[k] - lo[i]) / (hi[i] - lo[i]) for i, k in enumerate(free)])
+            X = np.tile(np.clip(x0, 0.0, 1.0), (T, 1))
+            rows = lookup(X, tg)
+            Q0, ok0, _ = gather(rows)
+            F = merit(Q0, ok0, np.arange(T))
+            step = np.full(T, 0.02)
+        # Batched compass search with Hooke-Jeeves pattern moves, all tracks together, plus one
+        # model step per track: the Newton step of the separable quadratic through the last
+        # compass stencil (central differences), which speeds up the long moves.
+        E = np.vstack([np.eye(d), -np.eye(d)])
+        move = np.zeros((T, d))
+        model = X.copy()
+        nc = 2 * d + 3
         for _ in range(max_iter):
             active = step > tol
             if not active.any():
                 break
-            compass = X[:, :, None, :] + step[:, :, None, None] * E[None, None]
-            pattern = X[:, :, None, :] + np.stack([move, 2.0 * move], axis=2)  # ridge moves
-            cand = np.clip(np.concatenate([compass, pattern], axis=2), 0.0, 1.0)  # (P,S,nc,d)
-            pidx = np.repeat(np.arange(P), starts * nc)
-            warm = {k: np.repeat(v.reshape((P * starts,) + v.shape[2:]), nc, axis=0) for k, v in centre.items()} or None
-            mc, st = run(cand.reshape(-1, d), pidx, warm)
-            mc = mc.reshape(P, starts, nc)
-            n_eval += P * starts * nc
-            j = np.argmax(mc, axis=-1)
-            better = (mc.max(axis=-1) > F) & active
-            new_X = np.take_along_axis(cand, j[..., None, None], axis=2)[:, :, 0, :]
-            move = np.where(better[..., None], new_X - X, 0.0)
-            X = np.where(better[..., None], new_X, X)
-            for k, v in st.items():
-                v = v.reshape((P, starts, nc) + v.shape[1:])
-                chosen = np.take_along_axis(v, j.reshape((P, starts, 1) + (1,) * (v.ndim - 3)), axis=2)[:, :, 0]
-                centre[k] = np.where(better.reshape((P, starts) + (1,) * (v.ndim - 3)), chosen, centre[k])
-            F = np.where(better, mc.max(axis=-1), F)
-            step = np.where(better | ~active, step, step / 2.0)
-        out = []
+            ta = np.flatnonzero(active)
+            A = len(ta)
+            compass = X[ta, None, :] + step[ta, None, None] * E[None]
+            extra = np.stack([X[ta] + move[ta], X[ta] + 2.0 * move[ta], model[ta]], axis=1)
+            cand = np.clip(np.concatenate([compass, extra], axis=1), 0.0, 1.0)  # (A, nc, d)
+            cg = np.repeat(tg[ta], nc)
+            _, _, st_c = gather(rows[ta])
+            crow = lookup(cand.reshape(-1, d), cg, np.repeat(np.arange(A), nc), st_c or None)
+            Qc, okc, _ = gather(crow)
+            mc = merit(Qc, okc, np.repeat(ta, nc)).reshape(-1, nc)
+            # The model step from this stencil (valid where both neighbours are inside the box and
+            # feasible; otherwise no move along that axis).
+            s_ = step[ta][:, None]
+            mp, mm, f = mc[:, :d], mc[:, d : 2 * d], F[ta][:, None]
+            inside = (X[ta] + s_ <= 1.0) & (X[ta] - s_ >= 0.0)
+            good = inside & (mp > _INFEASIBLE / 2) & (mm > _INFEASIBLE / 2) & (f > _INFEASIBLE / 2)
+            grad = (mp - mm) / (2.0 * s_)
+            curv = (mp - 2.0 * f + mm) / s_**2
+            newton = np.where(curv < 0, -grad / np.where(curv < 0, curv, -1.0), np.sign(grad) * 2.0 * s_)
+            delta = np.where(good, np.clip(newton, -4.0 * s_, 4.0 * s_), 0.0)
+            j = np.argmax(mc, axis=1)
+            better = mc[np.arange(A), j] > F[ta]
+            new_x = cand[np.arange(A), j]
+            model[ta] = np.clip(X[ta] + delta, 0.0, 1.0)
+            move[ta] = np.where(better[:, None], new_x - X[ta], 0.0)
+            X[ta] = np.where(better[:, None], new_x, X[ta])
+            rows[ta] = np.where(better, crow.reshape(-1, nc)[np.arange(A), j], rows[ta])
+            F[ta] = np.where(better, mc[np.arange(A), j], F[ta])
+            step[ta] = np.where(better, step[ta], step[ta] / 2.0)
+        per = starts if start is None else 1
+        out = {tg_: [] for tg_ in targets}
         for p in range(P):
-            s = int(np.argmax(F[p]))
-            x = lo + X[p, s] * (hi - lo)
-            dec = {k: np.array([x[i]]) for i, k in enumerate(free)} | {k: np.array([v]) for k, v in fixed.items()}
-            out.append((dec, n_eval))
-        return out
+            for k_t, tg_ in enumerate(targets):
+                base = (p * len(targets) + k_t) * per
+                s_best = base + int(np.argmax(F[base : base + per]))
+                x = lo + X[s_best] * (hi - lo)
+                out[tg_].append({k: float(x[i]) for i, k in enumerate(free)} | {k: float(v) for k, v in fixed.items()})
+        return out, n_eval
+
+    def _margins(self, vals):
+        margins = {}
+        for name, c in self._constraints.items():
+            if c.function is not None:
+                margins[name] = np.asarray(c.function(vals), dtype=float)
+            else:
+                v = vals[name]
+                margins[name] = (c.limit - v) if c.sense == "max" else (v - c.limit)
+        return margins
 
     # -- maps ----------------------------------------------------------------------------------
     def landscape(self, x: str, y: str, n: int = 15, at: Mapping | None = None, parameters: Mapping | None = None):
