@@ -572,42 +572,75 @@ class Study:
         # model step per track: the Newton step of the separable quadratic through the last
         # compass stencil (central differences), which speeds up the long moves.
         E = np.vstack([np.eye(d), -np.eye(d)])
-        move = np.zeros((T, d))
-        model = X.copy()
         nc = 2 * d + 3
-        for _ in range(max_iter):
-            active = step > tol
-            if not active.any():
-                break
-            ta = np.flatnonzero(active)
-            A = len(ta)
-            compass = X[ta, None, :] + step[ta, None, None] * E[None]
-            extra = np.stack([X[ta] + move[ta], X[ta] + 2.0 * move[ta], model[ta]], axis=1)
-            cand = np.clip(np.concatenate([compass, extra], axis=1), 0.0, 1.0)  # (A, nc, d)
-            cg = np.repeat(tg[ta], nc)
-            _, _, st_c = gather(rows[ta])
-            crow = lookup(cand.reshape(-1, d), cg, np.repeat(np.arange(A), nc), st_c or None)
-            Qc, okc, _ = gather(crow)
-            mc = merit(Qc, okc, np.repeat(ta, nc)).reshape(-1, nc)
-            # The model step from this stencil (valid where both neighbours are inside the box and
-            # feasible; otherwise no move along that axis).
-            s_ = step[ta][:, None]
-            mp, mm, f = mc[:, :d], mc[:, d : 2 * d], F[ta][:, None]
-            inside = (X[ta] + s_ <= 1.0) & (X[ta] - s_ >= 0.0)
-            good = inside & (mp > _INFEASIBLE / 2) & (mm > _INFEASIBLE / 2) & (f > _INFEASIBLE / 2)
-            grad = (mp - mm) / (2.0 * s_)
-            curv = (mp - 2.0 * f + mm) / s_**2
-            newton = np.where(curv < 0, -grad / np.where(curv < 0, curv, -1.0), np.sign(grad) * 2.0 * s_)
-            delta = np.where(good, np.clip(newton, -4.0 * s_, 4.0 * s_), 0.0)
-            j = np.argmax(mc, axis=1)
-            better = mc[np.arange(A), j] > F[ta]
-            new_x = cand[np.arange(A), j]
-            model[ta] = np.clip(X[ta] + delta, 0.0, 1.0)
-            move[ta] = np.where(better[:, None], new_x - X[ta], 0.0)
-            X[ta] = np.where(better[:, None], new_x, X[ta])
-            rows[ta] = np.where(better, crow.reshape(-1, nc)[np.arange(A), j], rows[ta])
-            F[ta] = np.where(better, mc[np.arange(A), j], F[ta])
-            step[ta] = np.where(better, step[ta], step[ta] / 2.0)
+
+        def pattern_search(X, rows, F, step):
+            move = np.zeros((T, d))
+            model = X.copy()
+            for _ in range(max_iter):
+                active = step > tol
+                if not active.any():
+                    break
+                ta = np.flatnonzero(active)
+                A = len(ta)
+                compass = X[ta, None, :] + step[ta, None, None] * E[None]
+                extra = np.stack([X[ta] + move[ta], X[ta] + 2.0 * move[ta], model[ta]], axis=1)
+                cand = np.clip(np.concatenate([compass, extra], axis=1), 0.0, 1.0)  # (A, nc, d)
+                cg = np.repeat(tg[ta], nc)
+                _, _, st_c = gather(rows[ta])
+                crow = lookup(cand.reshape(-1, d), cg, np.repeat(np.arange(A), nc), st_c or None)
+                Qc, okc, _ = gather(crow)
+                mc = merit(Qc, okc, np.repeat(ta, nc)).reshape(-1, nc)
+                # The model step from this stencil (valid where both neighbours are inside the box and
+                # feasible; otherwise no move along that axis).
+                s_ = step[ta][:, None]
+                mp, mm, f = mc[:, :d], mc[:, d : 2 * d], F[ta][:, None]
+                inside = (X[ta] + s_ <= 1.0) & (X[ta] - s_ >= 0.0)
+                good = inside & (mp > _INFEASIBLE / 2) & (mm > _INFEASIBLE / 2) & (f > _INFEASIBLE / 2)
+                grad = (mp - mm) / (2.0 * s_)
+                curv = (mp - 2.0 * f + mm) / s_**2
+                newton = np.where(curv < 0, -grad / np.where(curv < 0, curv, -1.0), np.sign(grad) * 2.0 * s_)
+                delta = np.where(good, np.clip(newton, -4.0 * s_, 4.0 * s_), 0.0)
+                j = np.argmax(mc, axis=1)
+                better = mc[np.arange(A), j] > F[ta]
+                new_x = cand[np.arange(A), j]
+                model[ta] = np.clip(X[ta] + delta, 0.0, 1.0)
+                move[ta] = np.where(better[:, None], new_x - X[ta], 0.0)
+                X[ta] = np.where(better[:, None], new_x, X[ta])
+                rows[ta] = np.where(better, crow.reshape(-1, nc)[np.arange(A), j], rows[ta])
+                F[ta] = np.where(better, mc[np.arange(A), j], F[ta])
+                step[ta] = np.where(better, step[ta], step[ta] / 2.0)
+            return X, rows, F
+
+        X, rows, F = pattern_search(X, rows, F, step)
+        # Cross-seeding: a track whose merit is higher at another track's result of the same
+        # physics group (its figures are already stored: only the money is recomputed) moves
+        # there and polishes again. This keeps the optima of neighbouring price sets mutually
+        # consistent, which any true optimum is (each beats the other's under its own prices).
+        if T > 1:
+            for _ in range(2):
+                adopt = np.zeros(T, bool)
+                for grp in np.unique(tg):
+                    tt = np.flatnonzero(tg == grp)
+                    if len(tt) < 2:
+                        continue
+                    ends = np.unique(rows[tt])
+                    if len(ends) > 32:  # bound the work for large batches: an even subset
+                        ends = ends[np.linspace(0, len(ends) - 1, 32).astype(int)]
+                    Qe, oke, _ = gather(np.tile(ends, len(tt)))
+                    me = merit(Qe, oke, np.repeat(tt, len(ends))).reshape(len(tt), len(ends))
+                    jb = np.argmax(me, axis=1)
+                    up = me[np.arange(len(tt)), jb] > F[tt] + 1e-9 * np.abs(F[tt])
+                    src = {int(r): i for i, r in enumerate(rows)}
+                    for i in np.flatnonzero(up):
+                        t = tt[i]
+                        X[t] = X[src[int(ends[jb[i]])]]
+                        rows[t] = ends[jb[i]]
+                        F[t] = me[i, jb[i]]
+                        adopt[t] = True
+                if not adopt.any():
+                    break
+                X, rows, F = pattern_search(X, rows, F, np.where(adopt, 0.02, 0.0))
         per = starts if start is None else 1
         out = {tg_: [] for tg_ in targets}
         for p in range(P):
