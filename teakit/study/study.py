@@ -37,6 +37,42 @@ _INFEASIBLE = -1e30
 _LATTICE = float(2**24)
 
 
+class _PhysicsMemo:
+    """Process figures (a :func:`_flatten` matrix), feasibility and solver state by point key."""
+
+    MAX_ROWS = 200_000
+
+    def __init__(self):
+        self.index: dict[bytes, int] = {}
+        self.template: dict = {}  # column layout of the figure matrix (see _flatten)
+        self.n = 0
+        self.Q = self.ok = None
+        self.state: dict = {}
+
+    def add(self, keys, Q, ok, state):
+        n_new = len(keys)
+        if self.Q is None:
+            cap = max(1024, 2 * n_new)
+            self.Q = np.empty((cap, Q.shape[1]))
+            self.ok = np.empty(cap, bool)
+            self.state = {k: np.empty((cap,) + v.shape[1:]) for k, v in state.items()}
+        elif self.n + n_new > len(self.Q):
+            cap = 2 * (self.n + n_new)
+            self.Q = np.resize(self.Q, (cap, self.Q.shape[1]))
+            self.ok = np.resize(self.ok, cap)
+            self.state = {k: np.resize(v, (cap,) + v.shape[1:]) for k, v in self.state.items()}
+        sl = slice(self.n, self.n + n_new)
+        self.Q[sl], self.ok[sl] = Q, ok
+        for k, v in state.items():
+            self.state[k][sl] = v
+        for j, key in enumerate(keys):
+            self.index[key] = self.n + j
+        self.n += n_new
+
+    def get(self, rows):
+        return self.Q[rows], self.ok[rows], {k: v[rows] for k, v in self.state.items()}
+
+
 def _flatten(proc):
     """Every numeric figure of a ProcessResult as columns of one matrix (N, q), and a template."""
     n = len(proc)
@@ -59,11 +95,9 @@ def _flatten(proc):
 
 
 def _rebuild(Q, ok, template):
-    """A ProcessResult from a figure matrix of :func:`_flatten` (e.g. response-surface predictions)."""
+    """A ProcessResult from (rows of) a figure matrix of :func:`_flatten`, for pricing."""
     from teakit.process.result import ProcessResult
 
-    if "nonneg" in template:
-        Q = np.where(template["nonneg"], np.maximum(Q, 0.0), Q)
     values, equipment = {}, {item: dict(c) for item, c in template["consts"].items()}
     for j, (kind, a, b) in enumerate(template["cols"]):
         if kind == "v":
@@ -446,7 +480,8 @@ class Study:
         G = len(uniq)
         fn = self._info["function"]
         kw = dict(self._info.get("search_options", {}))
-        template = {}
+        memo = self._memo()
+        template = memo.template
 
         def physics(X, gi, warm):
             x = lo + X * (hi - lo)
@@ -454,9 +489,7 @@ class Study:
             phys = {k: uniq[gi, j] for j, k in enumerate(pnames)}
             proc = fn(dec, phys, **kw, **({"warm": warm} if warm else {}))
             Q, tmpl = _flatten(proc)
-            tm = template.setdefault("t", tmpl)
-            # Figures never negative in any evaluation (powers, areas, flows) stay so on a surface.
-            tm["nonneg"] = tm.get("nonneg", np.ones(Q.shape[1], bool)) & np.all(Q[proc.ok] >= 0, axis=0)
+            template.setdefault("t", tmpl)
             return Q, proc.ok, proc.state
 
         # Tracks: (parameter set, target, start).
@@ -491,47 +524,30 @@ class Study:
         # Physics evaluations, memoised per group on a fine lattice of the unit box: candidates
         # that coincide (the same step of two price sets, a return to an earlier point, the
         # profit and yield searches) are evaluated once.
-        cache = [dict() for _ in range(G)]
-        store = {"Q": [], "ok": [], "state": []}
+        gkeys = [uniq[grp].tobytes() for grp in range(G)]
         n_eval = 0
 
         def lookup(X, gi, warm_rows=None, warm=None):
-            """Row indices into the store of points X (N, d) of groups gi, evaluating misses."""
+            """Row indices into the memo of points X (N, d) of groups gi, evaluating misses."""
             nonlocal n_eval
-            keys = [(int(gg), np.round(x * _LATTICE).astype(np.int64).tobytes()) for gg, x in zip(gi, X, strict=True)]
-            rows = np.empty(len(X), int)
-            miss, miss_keys = [], {}
-            for i, (gg, kk) in enumerate(keys):
-                r = cache[gg].get(kk)
-                if r is None:
-                    r = miss_keys.get((gg, kk))
-                    if r is None:
-                        miss_keys[(gg, kk)] = len(miss)
-                        miss.append(i)
-                    rows[i] = -1 - miss_keys[(gg, kk)]
-                else:
-                    rows[i] = r
-            if miss:
-                mi = np.array(miss)
+            lat = np.round(X * _LATTICE).astype(np.int64)
+            keys = [gkeys[gg] + lat[i].tobytes() for i, gg in enumerate(gi)]
+            rows = np.array([memo.index.get(k, -1) for k in keys], int)
+            miss_keys: dict = {}
+            for i in np.flatnonzero(rows < 0):
+                miss_keys.setdefault(keys[i], i)
+            if miss_keys:
+                mi = np.array(list(miss_keys.values()))
                 w = None
                 if warm is not None and warm_rows is not None:
                     w = {k: v[warm_rows[mi]] for k, v in warm.items()}
                 Q, ok, st = physics(X[mi], gi[mi], w)
                 n_eval += len(mi)
-                base = sum(len(q) for q in store["Q"])
-                store["Q"].append(Q)
-                store["ok"].append(ok)
-                store["state"].append(st)
-                for j, i in enumerate(miss):
-                    cache[keys[i][0]][keys[i][1]] = base + j
-                rows = np.where(rows < 0, base + (-1 - rows), rows)
+                memo.add(list(miss_keys), Q, ok, st)
+                rows = np.array([memo.index[k] for k in keys], int)
             return rows
 
-        def gather(rows):
-            Q = np.concatenate(store["Q"])
-            ok = np.concatenate(store["ok"])
-            st = {k: np.concatenate([s_[k] for s_ in store["state"]]) for k in store["state"][0]} if store["state"][0] else {}
-            return Q[rows], ok[rows], {k: v[rows] for k, v in st.items()}
+        gather = memo.get
 
         T = len(tr_p)
         tg = g_of_p[tr_p]
@@ -650,6 +666,14 @@ class Study:
                 x = lo + X[s_best] * (hi - lo)
                 out[tg_].append({k: float(x[i]) for i, k in enumerate(free)} | {k: float(v) for k, v in fixed.items()})
         return out, n_eval
+
+    def _memo(self):
+        """The study's memo of process evaluations at search accuracy (kept between calls, so
+        re-optimising after a price change re-uses the physics already computed)."""
+        memo = getattr(self, "_physics_memo", None)
+        if memo is None or memo.n > _PhysicsMemo.MAX_ROWS:
+            memo = self._physics_memo = _PhysicsMemo()
+        return memo
 
     def _margins(self, vals):
         margins = {}
