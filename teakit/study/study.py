@@ -278,24 +278,30 @@ class Study:
         return ({k: np.broadcast_to(v, (B,)) for k, v in dec.items()},
                 {k: np.broadcast_to(v, (B,)) for k, v in par.items()}, B)
 
-    def _run(self, dec, par, B, with_metrics=True, warm=None, search=False):
+    def _process(self, dec, par, warm=None, search=False):
         phys = {k: v for k, v in par.items() if self._parameters[k].kind == "physics"}
-        econ = {k: v for k, v in par.items() if self._parameters[k].kind == "economics"}
-        fn = self._info["function"]
         # During the search a coarser solve serves (fewer bed steps, looser loop tolerance:
         # objective differences stay below 1e-4 relative); reported figures use the defaults.
         kw = dict(self._info.get("search_options", {})) if search else {}
         if warm is not None:
             kw["warm"] = warm
-        proc = fn(dec, phys, **kw)
+        return self._info["function"](dec, phys, **kw)
+
+    def _price(self, proc, par, with_metrics=True):
+        econ = {k: v for k, v in par.items() if self._parameters[k].kind == "economics"}
         money = plant_economics(proc, econ, with_metrics=with_metrics)
         vals = {**proc.values, **{k: v for k, v in money.items() if not k.startswith("_") and k != "status"}}
         margins = self._margins(vals)
         status = money["status"]
         yld = np.where(status == "ok", self._info["yield"](proc.values), 0.0)
-        return proc, vals, margins, status, yld
+        return vals, margins, status, yld
 
-    def evaluate(self, decisions: Mapping | None = None, parameters: Mapping | None = None):
+    def _run(self, dec, par, B, with_metrics=True, warm=None, search=False):
+        proc = self._process(dec, par, warm, search)
+        return (proc, *self._price(proc, par, with_metrics))
+
+    def evaluate(self, decisions: Mapping | None = None, parameters: Mapping | None = None, *,
+                 process=None):
         """Results of a batch of operating points as a DataFrame (one row per point).
 
         Parameters
@@ -304,6 +310,9 @@ class Study:
             Decision values (SI numbers, arrays or strings with units); others at their default.
         parameters : mapping, optional
             Parameter values; others at their nominal value. Arrays broadcast with decisions.
+        process : ProcessResult, optional
+            The result of :meth:`process` for the same decisions and physics parameters: the
+            points are priced again without repeating the physics.
 
         Returns
         -------
@@ -312,10 +321,39 @@ class Study:
             LCOP, constraint margins (``margin_<name>``, >= 0 feasible), ``yield``, ``status`` and
             ``feasible``; column names carry units.
         """
+        dec, par, B = self._arrays(decisions, parameters)
+        if process is None:
+            return self._frame(dec, par, self._process(dec, par))
+        made = getattr(process, "inputs", None)
+        if made is None or made[0] is not self:
+            raise InputError("process must be a ProcessResult returned by this study's process()")
+        _, pdec, pphys = made
+        n = len(process)
+        same = all(np.array_equal(np.broadcast_to(dec[k], (n,)) if B in (1, n) else dec[k], pdec[k]) for k in pdec) and all(
+            np.array_equal(np.broadcast_to(par[k], (n,)) if B in (1, n) else par[k], pphys[k]) for k in pphys)
+        if not same:
+            raise InputError("process= was computed for other decisions or physics parameters; "
+                             "only economic parameters may differ (call process() again)")
+        return self._frame(pdec, par, process)
+
+    def process(self, decisions: Mapping | None = None, parameters: Mapping | None = None):
+        """The process run alone (a ProcessResult) for a batch of operating points.
+
+        Pass it back to :meth:`evaluate` as ``process=`` to price the same points again at other
+        economic parameters without repeating the physics (maps, interactive panels).
+        """
+        dec, par, _ = self._arrays(decisions, parameters)
+        proc = self._process(dec, par)
+        proc.inputs = (self, dec, {k: v for k, v in par.items() if self._parameters[k].kind == "physics"})
+        return proc
+
+    def _frame(self, dec, par, proc):
         import pandas as pd
 
-        dec, par, B = self._arrays(decisions, parameters)
-        proc, vals, margins, status, yld = self._run(dec, par, B)
+        B = len(proc)
+        dec = {k: np.broadcast_to(v, (B,)) for k, v in dec.items()}
+        par = {k: np.broadcast_to(v, (B,)) for k, v in par.items()}
+        vals, margins, status, yld = self._price(proc, par)
         cols = {f"{k} [{d.unit}]": dec[k] for k, d in self._decisions.items()}
         for k, v in proc.values.items():
             cols[f"{k} [{proc.units.get(k, '-')}]"] = v
