@@ -33,6 +33,25 @@ __all__ = ["OBJECTIVES", "Optimum", "Study"]
 #: Merit of a point violating a constraint: below every feasible objective (lexicographic order:
 #: feasible by objective, then infeasible by total relative violation, then process failures).
 _INFEASIBLE = -1e30
+#: Economic parameters the NPV and annual profit are linear in (at fixed discount rate, tax rate,
+#: plant life, hours, efficiencies and catalyst density and life).
+_LINEAR_ECONOMICS = frozenset({
+    "product_price", "electricity_price", "hydrogen_price", "nitrogen_price", "sulfur_price",
+    "steam_credit", "fuel_price", "cooling_water_price", "catalyst_price", "operator_salary",
+    "contingency", "fee", "auxiliary", "working_capital_fraction",
+})
+
+
+class _NotLinear(Exception):
+    """Linear pricing does not apply (a constraint reads money)."""
+
+
+def _compose(objective, good, violation):
+    """Lexicographic merit as one float: feasible points by objective; points violating a
+    constraint below all of them, ordered by total relative violation; failures last."""
+    m = np.where(np.isfinite(objective), objective, _INFEASIBLE)
+    v = np.minimum(violation, 1e6)
+    return np.where(good & (violation == 0), m, np.where(good, _INFEASIBLE * (1.0 + v), 1e4 * _INFEASIBLE))
 #: Lattice of the unit decision box on which process evaluations are memoised (2^-24).
 _LATTICE = float(2**24)
 
@@ -71,6 +90,21 @@ class _PhysicsMemo:
 
     def get(self, rows):
         return self.Q[rows], self.ok[rows], {k: v[rows] for k, v in self.state.items()}
+
+
+def _take(proc, idx):
+    """Members ``idx`` of a ProcessResult (repeats allowed)."""
+    from teakit.process.result import ProcessResult
+
+    n = len(proc)
+
+    def pick(v):
+        return np.asarray(v)[idx] if np.ndim(v) and np.shape(v)[0] == n else v
+
+    return ProcessResult(proc.case, {k: pick(v) for k, v in proc.values.items()}, proc.units,
+                         {item: {f: pick(v) for f, v in spec.items()} for item, spec in proc.equipment.items()},
+                         proc.status[idx], {k: pick(v) for k, v in proc.profiles.items()},
+                         {k: pick(v) for k, v in proc.state.items()})
 
 
 def _flatten(proc):
@@ -323,6 +357,16 @@ class Study:
         """
         dec, par, B = self._arrays(decisions, parameters)
         if process is None:
+            # Rows with equal decisions and physics (e.g. a fixed optimum priced for many price
+            # sets) are solved once.
+            keys = np.stack([np.broadcast_to(dec[k], (B,)) for k in dec]
+                            + [np.broadcast_to(v, (B,)) for k, v in par.items() if self._parameters[k].kind == "physics"], axis=1)
+            uniq, inv = np.unique(keys, axis=0, return_inverse=True)
+            if len(uniq) < B:
+                first = np.array([np.flatnonzero(inv.ravel() == i)[0] for i in range(len(uniq))])
+                sub = self._process({k: np.broadcast_to(v, (B,))[first] for k, v in dec.items()},
+                                    {k: np.broadcast_to(v, (B,))[first] for k, v in par.items()})
+                return self._frame(dec, par, _take(sub, inv.ravel()))
             return self._frame(dec, par, self._process(dec, par))
         made = getattr(process, "inputs", None)
         if made is None or made[0] is not self:
@@ -335,6 +379,22 @@ class Study:
             raise InputError("process= was computed for other decisions or physics parameters; "
                              "only economic parameters may differ (call process() again)")
         return self._frame(pdec, par, process)
+
+    def cash_flows(self, decisions: Mapping | None = None, parameters: Mapping | None = None):
+        """The yearly cash flows (a :class:`teakit.finance.CashFlows`) of a batch of points.
+
+        Examples
+        --------
+        >>> from teakit import Study
+        >>> s = Study.from_toml("acid_redmesa.toml")
+        >>> cf = s.cash_flows(s.decision_table()["default"].to_dict())
+        >>> round(float(cf.npv[0]) / 1e6) == round(float(s.evaluate({})["npv [USD]"].iloc[0]) / 1e6)
+        True
+        """
+        dec, par, _ = self._arrays(decisions, parameters)
+        proc = self._process(dec, par)
+        econ = {k: v for k, v in par.items() if self._parameters[k].kind == "economics"}
+        return plant_economics(proc, econ, with_metrics=False)["_cash_flows"]
 
     def process(self, decisions: Mapping | None = None, parameters: Mapping | None = None):
         """The process run alone (a ProcessResult) for a batch of operating points.
@@ -541,23 +601,84 @@ class Study:
         tr_tgt = np.array(tr_tgt, int)
         need_metrics = self.objective in ("irr", "lcop")
 
-        def merit(Q, ok, t):
+        def merit_direct(Q, ok, t):
             p = tr_p[t]
             proc = _rebuild(Q, ok, template["t"])
             econ = {k: np.asarray(par[k])[p] for k in enames}
             money = plant_economics(proc, econ, with_metrics=need_metrics)
             vals = {**proc.values, **{k: v for k, v in money.items() if not k.startswith("_") and k != "status"}}
-            margins = self._margins(vals)
             good = money["status"] == "ok"
             yld = np.where(good, self._info["yield"](proc.values), 0.0)
             obj = OBJECTIVES[self.objective] * np.asarray(vals[self.objective], float)
-            m = np.where(tr_tgt[t] == 1, yld, obj)
-            viol = np.zeros(len(Q))
-            for name, mg in margins.items():
-                sc = max(abs(self._constraints[name].limit), 1.0)
-                viol += np.maximum(1e-4 * sc - mg, 0.0) / sc  # slack: stays feasible at full accuracy
-            m = np.where(np.isfinite(m), m, _INFEASIBLE)
-            return np.where(good & (viol == 0), m, np.where(good, _INFEASIBLE - viol, 2.0 * _INFEASIBLE))
+            return _compose(np.where(tr_tgt[t] == 1, yld, obj), good, self._violation(vals))
+
+        # Linear pricing: with only prices and cost factors that enter the objective linearly
+        # varying between sets (NPV and annual profit are linear in every price and in the
+        # capital factors at fixed discount rate, tax rate, life and hours; losses are credited),
+        # the objective of every stored point is a(x) + sum_k (e_k - e0_k) b_k(x), computed once
+        # per point. Checked against the direct pricing before use.
+        varying = [k for k in enames if np.ptp(np.asarray(par[k], float)) > 0]
+        lin = None
+        if (varying and set(varying) <= _LINEAR_ECONOMICS and self.objective in ("npv", "annual_profit")
+                and all(c.function is None for c in self._constraints.values())):
+            e0 = {k: float(np.asarray(par[k])[0]) for k in enames}
+            delta = {k: (0.5 * e0[k] if e0[k] > 0 else 0.01) for k in varying}
+            lin = {"e0": e0, "delta": delta, "k": varying, "a": {}, "checked": False}
+
+        def lin_rows(rows):
+            """Objective intercept, slopes, feasibility and yield of stored rows (cached)."""
+            new = np.unique(rows[[r not in lin["a"] for r in rows]]) if len(rows) else rows
+            if len(new):
+                Q, ok, _ = memo.get(new)
+                proc = _rebuild(Q, ok, template["t"])
+                K = len(lin["k"])
+                econ = {k: np.full(len(new), lin["e0"][k]) for k in enames}
+                money = plant_economics(proc, econ, with_metrics=False)
+                vals = {**proc.values, **{k: v for k, v in money.items() if not k.startswith("_") and k != "status"}}
+                if any(c.name not in proc.values for c in self._constraints.values()):
+                    raise _NotLinear
+                good = money["status"] == "ok"
+                viol = self._violation(vals)
+                yld = np.where(good, self._info["yield"](proc.values), 0.0)
+                base = OBJECTIVES[self.objective] * np.asarray(vals[self.objective], float)
+                # One pricing of the K perturbed copies stacked (each price moved alone).
+                n_new = len(new)
+                proc_k = _take(proc, np.tile(np.arange(n_new), K))
+                e = {k: np.tile(econ[k], K) for k in enames}
+                for j, k in enumerate(lin["k"]):
+                    e[k][j * n_new:(j + 1) * n_new] += lin["delta"][k]
+                mk = OBJECTIVES[self.objective] * np.asarray(plant_economics(proc_k, e, with_metrics=False)[self.objective], float)
+                slopes = ((mk.reshape(K, n_new) - base) / np.array([lin["delta"][k] for k in lin["k"]])[:, None]).T
+                for i, r in enumerate(new):
+                    lin["a"][int(r)] = (base[i], slopes[i], bool(good[i]), viol[i], yld[i])
+            recs = [lin["a"][int(r)] for r in rows]
+            return (np.array([x[0] for x in recs]), np.array([x[1] for x in recs]).reshape(len(rows), -1),
+                    np.array([x[2] for x in recs], bool), np.array([x[3] for x in recs]), np.array([x[4] for x in recs]))
+
+        def merit(rows, t):
+            """Merit of stored points ``rows`` for tracks ``t`` (see _compose)."""
+            nonlocal lin
+            if lin is not None:
+                try:
+                    a, b, good, viol, yld = lin_rows(rows)
+                except _NotLinear:
+                    lin = None
+                else:
+                    p = tr_p[t]
+                    de = np.stack([np.asarray(par[k], float)[p] - lin["e0"][k] for k in lin["k"]], axis=1)
+                    obj = a + np.einsum("ij,ij->i", b, de)
+                    m = _compose(np.where(tr_tgt[t] == 1, yld, obj), good, viol)
+                    if not lin["checked"]:  # the decomposition must reproduce the direct pricing
+                        pick = np.unique(np.linspace(0, len(rows) - 1, min(len(rows), 8)).astype(int))
+                        Q, ok, _ = memo.get(rows[pick])
+                        direct = merit_direct(Q, ok, t[pick])
+                        if not np.allclose(direct, m[pick], rtol=1e-9, atol=1e-6):
+                            lin = None
+                            return merit(rows, t)
+                        lin["checked"] = True
+                    return m
+            Q, ok, _ = memo.get(rows)
+            return merit_direct(Q, ok, t)
 
         # Physics evaluations, memoised per group on a fine lattice of the unit box: candidates
         # that coincide (the same step of two price sets, a return to an earlier point, the
@@ -598,8 +719,7 @@ class Study:
             rows0 = lookup(np.tile(U, (G, 1)), np.repeat(np.arange(G), n0)).reshape(G, n0)
             # Best distinct starts of every (set, target) among its group's sample.
             lead = np.arange(0, T, starts)
-            Q0, ok0, _ = gather(rows0[tg[lead]].ravel())
-            f0 = merit(Q0, ok0, np.repeat(lead, n0)).reshape(-1, n0)
+            f0 = merit(rows0[tg[lead]].ravel(), np.repeat(lead, n0)).reshape(-1, n0)
             sidx = []
             for row in f0:
                 chosen = []
@@ -619,9 +739,9 @@ class Study:
             x0 = np.array([(start[k] - lo[i]) / (hi[i] - lo[i]) for i, k in enumerate(free)])
             X = np.tile(np.clip(x0, 0.0, 1.0), (T, 1))
             rows = lookup(X, tg)
-            Q0, ok0, _ = gather(rows)
-            F = merit(Q0, ok0, np.arange(T))
-            step = np.full(T, 0.02)
+            F = merit(rows, np.arange(T))
+            # An infeasible start (other physics move a constraint) searches wider.
+            step = np.where(F > _INFEASIBLE / 2, 0.02, 0.08)
         # Batched compass search with Hooke-Jeeves pattern moves, all tracks together, plus one
         # model step per track: the Newton step of the separable quadratic through the last
         # compass stencil (central differences), which speeds up the long moves.
@@ -643,8 +763,7 @@ class Study:
                 cg = np.repeat(tg[ta], nc)
                 _, _, st_c = gather(rows[ta])
                 crow = lookup(cand.reshape(-1, d), cg, np.repeat(np.arange(A), nc), st_c or None)
-                Qc, okc, _ = gather(crow)
-                mc = merit(Qc, okc, np.repeat(ta, nc)).reshape(-1, nc)
+                mc = merit(crow, np.repeat(ta, nc)).reshape(-1, nc)
                 # The model step from this stencil (valid where both neighbours are inside the box and
                 # feasible; otherwise no move along that axis).
                 s_ = step[ta][:, None]
@@ -654,7 +773,9 @@ class Study:
                 grad = (mp - mm) / (2.0 * s_)
                 curv = (mp - 2.0 * f + mm) / s_**2
                 newton = np.where(curv < 0, -grad / np.where(curv < 0, curv, -1.0), np.sign(grad) * 2.0 * s_)
-                delta = np.where(good, np.clip(newton, -4.0 * s_, 4.0 * s_), 0.0)
+                # Rounded to whole steps: every point stays on one lattice, so the tracks of
+                # neighbouring parameter sets meet on the same points and share them.
+                delta = np.where(good, np.round(np.clip(newton, -4.0 * s_, 4.0 * s_) / s_) * s_, 0.0)
                 j = np.argmax(mc, axis=1)
                 better = mc[np.arange(A), j] > F[ta]
                 new_x = cand[np.arange(A), j]
@@ -663,7 +784,9 @@ class Study:
                 X[ta] = np.where(better[:, None], new_x, X[ta])
                 rows[ta] = np.where(better, crow.reshape(-1, nc)[np.arange(A), j], rows[ta])
                 F[ta] = np.where(better, mc[np.arange(A), j], F[ta])
-                step[ta] = np.where(better, step[ta], step[ta] / 2.0)
+                # Expand after a success, contract after a failure (Kolda, Lewis & Torczon 2003,
+                # sec. 3.3): long walks take few iterations; steps stay powers of two.
+                step[ta] = np.where(better, np.minimum(2.0 * step[ta], 0.16), step[ta] / 2.0)
             return X, rows, F
 
         X, rows, F = pattern_search(X, rows, F, step)
@@ -681,8 +804,7 @@ class Study:
                     ends = np.unique(rows[tt])
                     if len(ends) > 32:  # bound the work for large batches: an even subset
                         ends = ends[np.linspace(0, len(ends) - 1, 32).astype(int)]
-                    Qe, oke, _ = gather(np.tile(ends, len(tt)))
-                    me = merit(Qe, oke, np.repeat(tt, len(ends))).reshape(len(tt), len(ends))
+                    me = merit(np.tile(ends, len(tt)), np.repeat(tt, len(ends))).reshape(len(tt), len(ends))
                     jb = np.argmax(me, axis=1)
                     up = me[np.arange(len(tt)), jb] > F[tt] + 1e-9 * np.abs(F[tt])
                     src = {int(r): i for i, r in enumerate(rows)}
@@ -712,6 +834,15 @@ class Study:
         if memo is None or memo.n > _PhysicsMemo.MAX_ROWS:
             memo = self._physics_memo = _PhysicsMemo()
         return memo
+
+    def _violation(self, vals):
+        """Total relative constraint violation of evaluated points, with a small slack (a point
+        found at search accuracy stays feasible when evaluated again at full accuracy)."""
+        viol = 0.0
+        for name, mg in self._margins(vals).items():
+            sc = max(abs(self._constraints[name].limit), 1.0)
+            viol = viol + np.maximum(1e-4 * sc - mg, 0.0) / sc
+        return np.broadcast_to(np.asarray(viol, float), np.shape(next(iter(vals.values()))))
 
     def _margins(self, vals):
         margins = {}
