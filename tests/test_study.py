@@ -190,7 +190,7 @@ def test_reoptimisation_batch_reuses_physics_and_never_loses_to_the_fixed_optimu
     assert 0 < evaluations([0, 1, 2, 0, 1, 2, 2]) == evaluations([0, 1, 2])
     # ... and a study re-optimising the same sets again re-uses every evaluation it made.
     _, par_si, P = s._arrays({}, par)
-    again = s._search(par_si, P, n_start=2, starts=1, seed=0, tol=2e-3, max_iter=30,
+    again = s._search(par_si, P, n_start=2, starts=1, seed=0, tol=2e-3, max_iter=15,
                       targets=["objective"], start=best.decisions)
     assert again[1] == 0
 

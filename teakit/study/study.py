@@ -18,7 +18,7 @@ win.
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 
 import numpy as np
 
@@ -268,6 +268,47 @@ class Study:
                 raise InputError(f"unknown constraint {k!r}; constraints: {', '.join(cons)} (or pass a Constraint)")
         self._constraints = cons
 
+    # -- pickling (worker processes rebuild the case registry entry and start a fresh memo) ----
+    def __getstate__(self):
+        return {f.name: getattr(self, f.name) for f in fields(self)}
+
+    def __setstate__(self, state):
+        for k, v in state.items():
+            setattr(self, k, v)
+        self.__post_init__()
+
+    # -- uncertainty studies (teakit.study.uncertainty) --------------------------------------
+    def monte_carlo(self, n: int = 1000, seed: int = 0, executor=None, **options):
+        """Monte Carlo of the re-optimised and the fixed optimum: see :func:`teakit.study.uncertainty.monte_carlo`."""
+        from teakit.study.uncertainty import monte_carlo
+
+        return monte_carlo(self, n, seed, executor, **options)
+
+    def sobol(self, n: int = 512, seed: int = 0, executor=None, **options):
+        """Sobol indices of NPV and the optimal decisions: see :func:`teakit.study.uncertainty.sobol`."""
+        from teakit.study.uncertainty import sobol
+
+        return sobol(self, n, seed, executor, **options)
+
+    def morris(self, trajectories: int = 10, seed: int = 0, executor=None, **options):
+        """Morris screening: see :func:`teakit.study.uncertainty.morris`."""
+        from teakit.study.uncertainty import morris
+
+        return morris(self, trajectories, seed, executor, **options)
+
+    def tornado(self, **options):
+        """One-at-a-time swings of each uncertain parameter: see :func:`teakit.study.uncertainty.tornado`."""
+        from teakit.study.uncertainty import tornado
+
+        return tornado(self, **options)
+
+    def value_of_information(self, n: int = 256, seed: int = 0, executor=None, **options):
+        """EVPI, EVPPI per parameter and the regret of the fixed optimum: see
+        :func:`teakit.study.uncertainty.value_of_information`."""
+        from teakit.study.uncertainty import value_of_information
+
+        return value_of_information(self, n, seed, executor, **options)
+
     # -- introspection -----------------------------------------------------------------------
     @property
     def free(self) -> list[str]:
@@ -496,7 +537,7 @@ class Study:
         return best[0] if P == 1 and not any(np.ndim(v) for v in (parameters or {}).values()) else best
 
     def optimize_batch(self, parameters: Mapping, *, start: Mapping | Optimum | None = None,
-                       tol: float = 2e-3, max_iter: int = 30, seed: int = 0):
+                       tol: float = 2e-3, max_iter: int = 15, seed: int = 0):
         """Re-optimise the decisions for a batch of parameter sets; one row per set.
 
         The uncertainty studies call this once per chunk of samples. Each set starts from
@@ -511,7 +552,9 @@ class Study:
         start : mapping or Optimum, optional
             Starting decisions [SI]; default: a full :meth:`optimize` at nominal parameters.
         tol, max_iter, seed
-            As for :meth:`optimize`.
+            As for :meth:`optimize`; ``max_iter`` bounds each pass of the local search (a
+            track still improving after it keeps its best point so far, never worse than
+            ``start``).
 
         Returns
         -------
@@ -753,6 +796,7 @@ class Study:
             model = X.copy()
             for _ in range(max_iter):
                 active = step > tol
+
                 if not active.any():
                     break
                 ta = np.flatnonzero(active)
@@ -777,7 +821,11 @@ class Study:
                 # neighbouring parameter sets meet on the same points and share them.
                 delta = np.where(good, np.round(np.clip(newton, -4.0 * s_, 4.0 * s_) / s_) * s_, 0.0)
                 j = np.argmax(mc, axis=1)
-                better = mc[np.arange(A), j] > F[ta]
+                # Sufficient increase (a forcing term above the search-accuracy noise of money,
+                # 1e-6 relative; yields, fractions near 1 with tiny gains, 1e-10): noise alone
+                # never keeps a track walking.
+                force = np.where(tr_tgt[ta] == 1, 1e-10, 1e-6) * np.maximum(np.abs(F[ta]), 1.0)
+                better = mc[np.arange(A), j] > F[ta] + force * (F[ta] > _INFEASIBLE / 2)
                 new_x = cand[np.arange(A), j]
                 model[ta] = np.clip(X[ta] + delta, 0.0, 1.0)
                 move[ta] = np.where(better[:, None], new_x - X[ta], 0.0)
@@ -816,7 +864,7 @@ class Study:
                         adopt[t] = True
                 if not adopt.any():
                     break
-                X, rows, F = pattern_search(X, rows, F, np.where(adopt, 0.02, 0.0))
+                X, rows, F = pattern_search(X, rows, F, np.where(adopt, 4.0 * tol, 0.0))
         per = starts if start is None else 1
         out = {tg_: [] for tg_ in targets}
         for p in range(P):
