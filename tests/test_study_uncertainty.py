@@ -337,3 +337,22 @@ def test_monte_carlo_killed_with_sigkill_resumes_exactly(tmp_path):
     assert resumed.info["computed_chunks"] == 16 - done_before
     uninterrupted = U.monte_carlo(make(), n=64, seed=9, chunk_size=4, progress=False)
     pd.testing.assert_frame_equal(resumed.to_frame(), uninterrupted.to_frame(), check_exact=True)
+
+
+def test_real_study_monte_carlo_is_identical_in_process_and_on_a_process_pool():
+    # The demo acid study, re-optimised per sample, in two chunks: each chunk starts from an
+    # empty memo of process evaluations, so the worker that runs it cannot change its result.
+    import warnings
+    from concurrent.futures import ProcessPoolExecutor
+
+    from teakit import Study
+
+    s = Study.from_toml("acid_redmesa.toml")
+    names = list(s.parameter_table().query("kind == 'economics' and distribution.notna()").index)[:2]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        best = s.optimize(max_yield=False, n_start=16, starts=1, max_iter=8)
+        a = s.monte_carlo(6, 3, parameters=names, nominal=best, chunk_size=3, progress=False)
+        with ProcessPoolExecutor(2) as pool:
+            b = s.monte_carlo(6, 3, executor=pool, parameters=names, nominal=best, chunk_size=3, progress=False)
+    pd.testing.assert_frame_equal(a.to_frame(), b.to_frame())

@@ -54,6 +54,10 @@ def _compose(objective, good, violation):
     return np.where(good & (violation == 0), m, np.where(good, _INFEASIBLE * (1.0 + v), 1e4 * _INFEASIBLE))
 #: Lattice of the unit decision box on which process evaluations are memoised (2^-24).
 _LATTICE = float(2**24)
+#: Constraint slack during the search, relative to each limit: the search's coarser bed
+#: integration moves a peak temperature by up to about 0.3 K, so 5e-4 (0.4 K at 800 K) keeps the
+#: optimum feasible when it is evaluated again at full accuracy.
+_SLACK = 5e-4
 
 
 class _PhysicsMemo:
@@ -838,6 +842,19 @@ class Study:
             return X, rows, F
 
         X, rows, F = pattern_search(X, rows, F, step)
+        lost = np.flatnonzero(F <= _INFEASIBLE / 2)
+        if start is not None and lost.size:
+            # A re-optimisation that found no feasible point near the start (other physics moved
+            # a constraint far) falls back to a global stage for its physics group.
+            U = qmc.Sobol(d, scramble=True, seed=seed).random_base2(6)
+            for grp in np.unique(tg[lost]):
+                tt = lost[tg[lost] == grp]
+                r0 = lookup(U, np.full(len(U), grp))
+                f0 = merit(np.tile(r0, len(tt)), np.repeat(tt, len(U))).reshape(len(tt), len(U))
+                jb = np.argmax(f0, axis=1)
+                up = f0[np.arange(len(tt)), jb] > F[tt]
+                X[tt[up]], rows[tt[up]], F[tt[up]] = U[jb[up]], r0[jb[up]], f0[np.arange(len(tt)), jb][up]
+            X, rows, F = pattern_search(X, rows, F, np.where(np.isin(np.arange(T), lost), 0.1, 0.0))
         # Cross-seeding: a track whose merit is higher at another track's result of the same
         # physics group (its figures are already stored: only the money is recomputed) moves
         # there and polishes again. This keeps the optima of neighbouring price sets mutually
@@ -875,6 +892,10 @@ class Study:
                 out[tg_].append({k: float(x[i]) for i, k in enumerate(free)} | {k: float(v) for k, v in fixed.items()})
         return out, n_eval
 
+    def clear_memo(self):
+        """Forget the stored process evaluations (results then depend on this call's inputs only)."""
+        self._physics_memo = None
+
     def _memo(self):
         """The study's memo of process evaluations at search accuracy (kept between calls, so
         re-optimising after a price change re-uses the physics already computed)."""
@@ -885,11 +906,11 @@ class Study:
 
     def _violation(self, vals):
         """Total relative constraint violation of evaluated points, with a small slack (a point
-        found at search accuracy stays feasible when evaluated again at full accuracy)."""
+        found at search accuracy stays feasible when evaluated again at full accuracy: _SLACK)."""
         viol = 0.0
         for name, mg in self._margins(vals).items():
             sc = max(abs(self._constraints[name].limit), 1.0)
-            viol = viol + np.maximum(1e-4 * sc - mg, 0.0) / sc
+            viol = viol + np.maximum(_SLACK * sc - mg, 0.0) / sc
         return np.broadcast_to(np.asarray(viol, float), np.shape(next(iter(vals.values()))))
 
     def _margins(self, vals):

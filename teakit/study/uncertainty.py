@@ -215,6 +215,9 @@ class _StudyModel:
         import pandas as pd
 
         st = self.study
+        # Each chunk starts from an empty memo of process evaluations, so its result depends on
+        # its own inputs only: identical whichever worker, executor or order runs it.
+        st.clear_memo()
         params = {k: chunk[k].to_numpy(dtype=float) for k in self.names}
         parts = []
         if self.reoptimize:
