@@ -70,7 +70,14 @@ import numpy as np
 
 from teakit.data import load_table
 from teakit.errors import InputError, TeakitError
-from teakit.validation import check_finite, check_fraction, check_positive, check_range
+from teakit.validation import (
+    as_float_array,
+    check_finite,
+    check_fraction,
+    check_positive,
+    check_range,
+    finite_result,
+)
 
 __all__ = [
     "DEPRECIATION_METHODS",
@@ -112,6 +119,8 @@ _N_BISECT = 64  # halvings: a bracket of width <= 2 * _S_CAP + 2 ln 2 shrinks be
 _N_GOLDEN = 60  # golden-section steps: a grid cell pair shrinks by 0.618**60 = 3e-13
 _CHUNK = 16384  # batch members per pass of the IRR search
 _LOG2 = float(np.log(2.0))
+#: Longest plant life, depreciation life or schedule accepted [yr] (bounds the table's memory).
+MAX_YEARS = 1000
 _SUM_TOL = 1e-9  # tolerance on schedules that must sum to 1
 
 
@@ -157,8 +166,11 @@ def _choice(name: str, value, choices) -> str:
 
 def _whole_years(name: str, value, minimum: int = 1) -> int:
     a = check_finite(name, value)
-    if a.ndim != 0 or a != np.round(a) or a < minimum:
-        raise InputError(f"{name} must be a whole number of years >= {minimum} [yr], got {value!r}")
+    if a.ndim != 0 or a != np.round(a) or a < minimum or a > MAX_YEARS:
+        raise InputError(
+            f"{name} must be a whole number of years >= {minimum} (at most {MAX_YEARS}) [yr], "
+            f"got {value!r}"
+        )
     return int(a)
 
 
@@ -258,7 +270,9 @@ def discounted_payback(rate, cashflows):
     c = _cashflow_array(cashflows)
     shape = _batch_shape(rate=r.shape, cashflows_batch=c.shape[:-1])
     n = c.shape[-1]
-    cum = np.cumsum(np.broadcast_to(c, (*shape, n)) * _discount(r, n), axis=-1)
+    with np.errstate(over="ignore", invalid="ignore"):
+        cum = np.cumsum(np.broadcast_to(c, (*shape, n)) * _discount(r, n), axis=-1)
+    finite_result("cumulative discounted cash flow", cum, rate=r, cashflows=c)
     neg = cum < 0.0
     ever = neg.any(axis=-1)
     last = n - 1 - np.argmax(neg[..., ::-1], axis=-1)  # last year with a negative cumulative
@@ -305,7 +319,7 @@ def capital_recovery_factor(rate, years):
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         denom = -np.expm1(-n * np.log1p(i))
         crf = np.where(i == 0.0, 1.0 / n, i / denom)
-    return _out(crf)
+    return _out(finite_result("capital recovery factor", crf, rate=i, years=n))
 
 
 def annualised_capital(capital, rate, years):
@@ -334,7 +348,9 @@ def annualised_capital(capital, rate, years):
     cap = check_positive("capital", capital, unit="USD", allow_zero=True)
     crf = np.asarray(capital_recovery_factor(rate, years))
     _batch_shape(capital=cap.shape, rate_years=crf.shape)
-    return _out(cap * crf)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = cap * crf
+    return _out(finite_result("annualised capital", out, capital=cap, rate=rate, years=years))
 
 
 def nominal_from_real(rate, inflation):
@@ -355,7 +371,9 @@ def nominal_from_real(rate, inflation):
     r = _rate("rate", rate)
     f = _rate("inflation", inflation)
     _batch_shape(rate=r.shape, inflation=f.shape)
-    return _out((1.0 + r) * (1.0 + f) - 1.0)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = (1.0 + r) * (1.0 + f) - 1.0
+    return _out(finite_result("nominal rate", out, rate=r, inflation=f))
 
 
 def real_from_nominal(rate, inflation):
@@ -376,7 +394,9 @@ def real_from_nominal(rate, inflation):
     r = _rate("rate", rate)
     f = _rate("inflation", inflation)
     _batch_shape(rate=r.shape, inflation=f.shape)
-    return _out((1.0 + r) / (1.0 + f) - 1.0)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        out = (1.0 + r) / (1.0 + f) - 1.0
+    return _out(finite_result("real rate", out, rate=r, inflation=f))
 
 
 # --------------------------------------------------------------------------------------------
@@ -744,6 +764,8 @@ def _macrs_matrix() -> np.ndarray:
 def _depreciation(method, life, n_years, method_name, life_name):
     method = _choice(method_name, method, DEPRECIATION_METHODS)
     life = check_positive(life_name, life, unit="yr")
+    if life.size == 0 or (life > MAX_YEARS).any():
+        raise InputError(f"{life_name} must be one or more numbers in (0, {MAX_YEARS}] [yr], got {life!r}")
     if method == "macrs":
         bad = ~np.isin(life, MACRS_PERIODS)
         if bad.any():
@@ -1046,7 +1068,7 @@ def cash_flows(
                 f"{', '.join(map(str, MACRS_PERIODS))} [yr]"
             )
         depreciation_life = life
-    if np.ndim(depreciation_life) != 0:
+    if as_float_array("depreciation_life", depreciation_life).ndim != 0:
         raise InputError(
             f"depreciation_life must be a single number [yr], got {depreciation_life!r}"
         )
@@ -1110,10 +1132,14 @@ def cash_flows(
     discounted = net * disc
     cumulative = np.cumsum(discounted, axis=-1)
     if not np.all(np.isfinite(cumulative)):
-        raise InputError("the cash flows overflow float range; check the magnitudes of the inputs")
+        finite_result("the cash-flow table", cumulative, fixed_capital=fci, revenue=rev,
+                      operating_cost=opx, fixed_operating_cost=fix, working_capital=wc,
+                      salvage_value=sal, discount_rate=i_r, inflation=f)
 
     full = (*batch, n)
-    i_n = (1.0 + np.broadcast_to(i_r, batch)) * (1.0 + np.broadcast_to(f, batch)) - 1.0
+    with np.errstate(over="ignore", invalid="ignore"):
+        i_n = (1.0 + np.broadcast_to(i_r, batch)) * (1.0 + np.broadcast_to(f, batch)) - 1.0
+    finite_result("nominal discount rate", i_n, discount_rate=i_r, inflation=f)
     return CashFlows(
         year=t,
         n_construction=n_c,
@@ -1334,7 +1360,10 @@ def metrics(
             raise InputError(
                 f"product_quantity of shape {q.shape} does not fit the batch {cf.batch_shape}"
             ) from None
-        lcop = _out(_lcop(cf, q))
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+            lc = _lcop(cf, q)
+        lcop = _out(finite_result("levelised cost of product", lc, product_quantity=q,
+                                  cash_flows=cf.net))
     return Metrics(
         npv=cf.npv,
         irr=_out(irr_r),

@@ -12,6 +12,7 @@ defined on purpose: pressures are absolute (state gauge pressure as such in your
 from __future__ import annotations
 
 import functools
+import re
 
 import numpy as np
 
@@ -80,17 +81,43 @@ def to_si(value, unit: str, name: str = "value") -> np.ndarray | float:
         import pint
 
         try:
-            q = ureg.Quantity(value) if isinstance(value, str) else value
+            q = _parse(ureg, value) if isinstance(value, str) else value
             out = q.to(unit).magnitude
+            out = np.asarray(out, dtype=float) if np.ndim(out) else float(out)
         except pint.errors.DimensionalityError as exc:
             raise InputError(
                 f"{name} = {value!r} does not convert to {unit} ({exc.dim1} vs {exc.dim2})"
             ) from exc
         except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError) as exc:
             raise InputError(f"{name} = {value!r}: unknown unit ({exc})") from exc
-        except (AttributeError, TypeError, ValueError, SyntaxError) as exc:
-            if isinstance(exc, InputError):
-                raise
-            raise InputError(f"{name} = {value!r} is not a quantity with a unit: {exc}") from exc
-        return np.asarray(out, dtype=float) if np.ndim(out) else float(out)
+        except InputError:
+            raise
+        except Exception as exc:  # pint's parser also raises AssertionError, TokenError, ...
+            raise InputError(
+                f"{name} = {value!r} is not a quantity with a unit: {type(exc).__name__}: {exc}"
+            ) from exc
+        return out
     return value
+
+
+# An integer literal that is not part of a name or of a decimal number.
+_INT = re.compile(r"(?<![\w.])(\d+)(?![\w.])")
+_MAX_LENGTH = 200
+
+
+def _parse(ureg, text: str):
+    """A pint Quantity from ``text``, with integer literals read as floats.
+
+    pint evaluates integer literals as Python integers, so that ``"9**9**9 bar"`` would compute
+    a number of some 370 million digits (a hang); as floats it overflows at once and raises.
+    Strings longer than 200 characters are refused, and so are commas: pint would read
+    ``"2,5 bar"`` as 25 bar (a decimal comma) and ``"1,000 bar"`` as 1000 bar.
+    """
+    if len(text) > _MAX_LENGTH:
+        raise ValueError(f"a quantity string must be at most {_MAX_LENGTH} characters")
+    if not text.strip():
+        raise ValueError("an empty string is not a quantity")
+    if "," in text:
+        raise ValueError("write numbers with a decimal point and without thousands separators "
+                         "(a ',' is ambiguous)")
+    return ureg.Quantity(_INT.sub(r"\1.0", text))

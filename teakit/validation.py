@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from teakit.errors import InputError
+from teakit.errors import InputError, OutOfRangeError
 
 __all__ = [
     "as_float_array",
@@ -18,6 +18,8 @@ __all__ = [
     "check_fraction",
     "check_positive",
     "check_range",
+    "check_scalar",
+    "finite_result",
     "scalar_or_array",
 ]
 
@@ -85,6 +87,14 @@ def check_range(
     return a
 
 
+def check_scalar(name: str, a) -> float:
+    """``a`` (already checked) as a float; InputError naming ``name`` unless it is one number."""
+    a = np.asarray(a)
+    if a.ndim != 0:
+        raise InputError(f"{name} must be a single number, got an array of shape {a.shape}")
+    return float(a)
+
+
 def check_fraction(name: str, value, open_ends: bool = False) -> np.ndarray:
     """Float array of ``value``; InputError unless every element is in [0, 1] ((0, 1) if open)."""
     inc = (not open_ends, not open_ends)
@@ -107,3 +117,61 @@ def scalar_or_array(a):
     """A 0-d result as a Python scalar (float for float arrays), anything else unchanged."""
     a = np.asarray(a)
     return a.item() if a.ndim == 0 else a
+
+
+def _extremeness(value) -> float:
+    """How far the magnitudes in ``value`` are from 1, in decades (0 for non-numbers)."""
+    try:
+        a = np.abs(np.asarray(value, dtype=float)).ravel()
+    except (TypeError, ValueError):
+        return 0.0
+    a = a[np.isfinite(a) & (a > 0)]
+    return float(np.abs(np.log10(a)).max()) if a.size else 0.0
+
+
+def _describe(name: str, value) -> str:
+    try:
+        a = np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        return name
+    if a.size == 0:
+        return name
+    if a.ndim == 0:
+        return f"{name} = {float(a):g}"
+    mags = np.abs(a[np.isfinite(a)])
+    if mags.size == 0:
+        return name
+    return f"{name} (magnitudes {mags.min():g} to {mags.max():g})"
+
+
+def finite_result(what: str, result, **inputs):
+    """``result`` unchanged if every number in it is finite, else an OutOfRangeError.
+
+    Model functions call this on their result: with finite inputs a NaN or inf can only come
+    from the float range being exceeded (e.g. a diameter of 1e300 m squared). The message
+    names ``what`` and every input in ``inputs`` with its value or magnitudes, the most extreme
+    first, so the user can find the argument that is absurdly large or small.
+
+    Parameters
+    ----------
+    what : str
+        What the result is, e.g. ``"shell_thickness"``.
+    result : float or array_like
+        The result to check.
+    **inputs
+        The arguments the result was computed from, by name.
+
+    Raises
+    ------
+    OutOfRangeError
+        If any element of ``result`` is NaN or infinite.
+    """
+    a = np.asarray(result)
+    if a.dtype.kind not in "fc" or np.all(np.isfinite(a)):
+        return result
+    names = sorted(inputs, key=lambda k: -_extremeness(inputs[k]))
+    desc = ", ".join(_describe(k, inputs[k]) for k in names)
+    raise OutOfRangeError(
+        f"{what} is not finite for these inputs (the float range is exceeded): {desc}; check "
+        "their magnitudes and units"
+    )

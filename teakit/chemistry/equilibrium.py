@@ -48,7 +48,7 @@ def _single(nu, n0, lnK, lnP, lnphi, max_iter, tol):
         k = int(np.flatnonzero(degenerate)[0])
         raise InputError(
             "feed has no reactant and no product the reaction can use: the reaction can proceed "
-            f"neither forward nor backward (batch member {k}, feed {n0[k].tolist()})"
+            f"neither forward nor backward (batch member {k}, feed per mole {n0[k].tolist()})"
         )
     # n_i = c0_i + cs_i (xi - lo) + cm_i (hi - xi): species limiting at either bound are then
     # exactly zero there, without cancellation near complete conversion.
@@ -138,11 +138,13 @@ def _interior_start(nu, n0_unique):
         c[-1] = -1.0
         bounds = [(None, None)] * R + [(None, n0.sum() / ns)]
         res = linprog(c, A_ub=A, b_ub=b, bounds=bounds, method="highs")
-        if not res.success or res.x[-1] <= 1e-12 * n0.sum():
+        # the start itself must hold every species (the LP works to absolute tolerances)
+        ok = res.success and (n0 + 0.5 * res.x[:R] @ nu)[involved].min() > 1e-12 * n0.sum()
+        if not ok or res.x[-1] <= 1e-12 * n0.sum():
             raise InputError(
                 "feed admits no composition in which every species of the reactions is present: "
                 "some species cannot form from this feed with these reactions "
-                f"(feed {n0.tolist()})"
+                f"(feed per mole {n0.tolist()})"
             )
         # back off halfway towards the analytic centre-ish point
         starts[k] = 0.5 * res.x[:R]
@@ -150,31 +152,82 @@ def _interior_start(nu, n0_unique):
 
 
 def _multi(nu, n0, lnK, lnP, lnphi, max_iter, tol):
+    """Several reactions: Newton steps on the extents with a line search, amounts tracked.
+
+    The amounts themselves are updated (n <- n + alpha dn with dn = nu^T step), not recomputed
+    from the feed and the extents, so that a species present only in traces keeps its relative
+    precision. The step is the Newton step of the ideal-gas Gibbs energy (phi lagged); alpha is
+    at most 1 and keeps every amount positive (at most 99 % of the way to zero), and is cut back
+    by a safeguarded secant search where the Gibbs energy along the step (phi frozen, convex in
+    alpha) would rise again before alpha, i.e. where its slope -F(alpha).step turns positive.
+    """
     R = nu.shape[0]
+    B = n0.shape[0]
     uniq, inverse = np.unique(n0, axis=0, return_inverse=True)
-    xi = _interior_start(nu, uniq)[inverse.ravel()]
+    n = np.maximum(n0 + _interior_start(nu, uniq)[inverse.ravel()] @ nu, _TINY)
     dnu = nu.sum(axis=1)
-    active = np.ones(n0.shape[0], dtype=bool)
-    F = np.zeros((n0.shape[0], R))
+    active = np.ones(B, dtype=bool)
+    F = np.zeros((B, R))
+    eye = np.eye(R)
+
+    def residual(n_, lph, lp, lk):
+        nt_ = n_.sum(axis=-1, keepdims=True)
+        return lk - (np.log(n_ / nt_) + lph + lp[:, None]) @ nu.T
+
     for _it in range(max_iter):
         idx = np.flatnonzero(active)
         if idx.size == 0:
             break
-        n = n0[idx] + xi[idx] @ nu
-        n = np.maximum(n, _TINY)
-        nt = n.sum(axis=-1)
-        y = n / nt[:, None]
-        mu = np.log(y) + lnphi(y, idx) + lnP[idx][:, None]
-        Fi = lnK[idx] - mu @ nu.T
+        ni = n[idx]
+        nt = ni.sum(axis=-1)
+        lph = lnphi(ni / nt[:, None], idx)
+        lp, lk = lnP[idx], lnK[idx]
+        Fi = residual(ni, lph, lp, lk)
         F[idx] = Fi
         done = np.max(np.abs(Fi), axis=-1) < tol
-        H = np.einsum("ji,ki,bi->bjk", nu, nu, 1.0 / n) - dnu[None, :, None] * dnu[None, None, :] / nt[:, None, None]
-        step = np.linalg.solve(H, Fi[..., None])[..., 0]
+        H = np.einsum("ji,ki,bi->bjk", nu, nu, 1.0 / ni) - dnu[None, :, None] * dnu[None, None, :] / nt[:, None, None]
+        # Solve with H scaled to a unit diagonal (the curvatures of trace and major species
+        # differ by many orders). H is positive definite unless the reactions can scale the
+        # whole mixture; then 1e-12 on the scaled diagonal keeps it invertible (only then: a
+        # soft direction may legitimately have a scaled curvature of 1e-15).
+        d = 1.0 / np.sqrt(np.maximum(np.einsum("bjj->bj", H), _TINY))
+        Hs = H * d[:, :, None] * d[:, None, :]
+        try:
+            step = d * np.linalg.solve(Hs, (d * Fi)[..., None])[..., 0]
+        except np.linalg.LinAlgError:
+            step = d * np.linalg.solve(Hs + 1e-12 * eye, (d * Fi)[..., None])[..., 0]
         dn = step @ nu
         with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = np.where(dn < 0, n / -dn, np.inf)
-        alpha = np.minimum(1.0, 0.95 * ratio.min(axis=-1))
-        xi[idx] = xi[idx] + np.where(done, 0.0, alpha)[:, None] * step
+            ratio = np.where(dn < 0, ni / -dn, np.inf)
+        a_hi = np.minimum(1.0, 0.99 * ratio.min(axis=-1))
+
+        def slope(a, ni=ni, dn=dn, lph=lph, lp=lp, lk=lk, step=step):
+            """Slope -F(a).step of the Gibbs energy along the step (phi frozen), and F(a)."""
+            r = residual(np.maximum(ni + a[:, None] * dn, _TINY), lph, lp, lk)
+            return -np.sum(r * step, axis=-1), r
+
+        s_hi, F_hi = slope(a_hi)
+        alpha = a_hi.copy()
+        # keep the step where the residual falls (near the solution the slope is rounding noise
+        # of the major species' terms), cut it back where it overshoots the minimum
+        cut = (s_hi > 0) & ~done & (np.max(np.abs(F_hi), axis=-1) >= np.max(np.abs(Fi), axis=-1))
+        if cut.any():  # the minimum along the step lies inside (0, a_hi): Illinois secant search
+            a_lo = np.zeros_like(a_hi)
+            s_lo = -np.sum(Fi * step, axis=-1)  # < 0 (a descent direction)
+            a_up, s_up = a_hi.copy(), s_hi.copy()
+            for _ in range(30):
+                with np.errstate(divide="ignore", invalid="ignore"):
+                    a_new = np.where(s_up > s_lo, a_lo - s_lo * (a_up - a_lo) / (s_up - s_lo), 0.5 * (a_lo + a_up))
+                a_new = np.where((a_new > a_lo) & (a_new < a_up), a_new, 0.5 * (a_lo + a_up))
+                s_new = slope(a_new)[0]
+                right = s_new > 0
+                a_lo, s_lo = np.where(right, a_lo, a_new), np.where(right, s_lo * 0.5, s_new)
+                a_up, s_up = np.where(right, a_new, a_up), np.where(right, s_new, s_up * 0.5)
+                if np.all(~cut | (np.abs(s_new) <= 0.1 * np.abs(s_hi)) | (a_up - a_lo <= 1e-15 * a_hi)):
+                    break
+            alpha = np.where(cut, np.where(a_lo > 0, a_lo, a_new), alpha)
+        alpha = np.where(done, 0.0, alpha)
+        n[idx] = np.maximum(ni + alpha[:, None] * dn, _TINY)
         active[idx] = ~done
     else:
         idx = np.flatnonzero(active)
@@ -185,7 +238,7 @@ def _multi(nu, n0, lnK, lnP, lnphi, max_iter, tol):
                 residuals=np.max(np.abs(F[idx]), axis=-1),
                 iterations=max_iter,
             )
-    return np.maximum(n0 + xi @ nu, 0.0)
+    return n
 
 
 def solve_extents(nu, n0, lnK, lnP, model, T, P, max_iter=MAX_ITER, tol=TOL):
@@ -212,6 +265,10 @@ def solve_extents(nu, n0, lnK, lnP, model, T, P, max_iter=MAX_ITER, tol=TOL):
         Equilibrium amounts [mol].
     """
     lnphi = model.bind(T, P)
+    # Equilibrium depends only on the ratios of the feed amounts: solve for one mole of feed
+    # (the starting point's linear programme works to absolute tolerances) and scale back.
+    scale = n0.sum(axis=-1, keepdims=True)
+    unit = n0 / scale
     if nu.shape[0] == 1:
-        return _single(nu[0], n0, lnK[:, 0], lnP, lnphi, max_iter, tol)
-    return _multi(nu, n0, lnK, lnP, lnphi, max_iter, tol)
+        return _single(nu[0], unit, lnK[:, 0], lnP, lnphi, max_iter, tol) * scale
+    return _multi(nu, unit, lnK, lnP, lnphi, max_iter, tol) * scale

@@ -12,6 +12,11 @@ K(T) is computed from the species data (standard state: ideal gas at 1 bar):
 
 Equilibrium for one or several independent reactions, ideal gas or real gas, is solved by
 :func:`teakit.chemistry.equilibrium.solve_extents` for a whole batch of (T, P, feed) at once.
+
+Caution: an equilibrium composition is a thermodynamic bound for a feasibility study, not an
+inventory or release estimate; ammonia, SO2 and SO3 are toxic, hydrogen-rich gas at pressure
+attacks steels, and the applicable codes, local regulations and licensed engineers govern any
+design that uses these numbers.
 """
 
 from __future__ import annotations
@@ -34,11 +39,17 @@ __all__ = ["EquilibriumResult", "Reaction", "ReactionSystem", "parse_equation"]
 _ARROWS = ("<=>", "<->", "⇌", "=")
 _TERM = re.compile(r"^\s*(\d+(?:\.\d*)?(?:/\d+)?|\.\d+)?\s*([A-Za-z][A-Za-z0-9]*)\s*$")
 
-def _coefficient(text: str) -> float:
-    if "/" in text:
-        num, den = text.split("/")
-        return float(num) / float(den)
-    return float(text)
+def _coefficient(text: str, equation: str) -> float:
+    num, _, den = text.partition("/")
+    value = float(num)
+    if den:
+        value = value / float(den) if float(den) != 0.0 else np.nan
+    if not np.isfinite(value):
+        raise InputError(
+            f"coefficient {text!r} in equation {equation!r} is not a finite number (division by "
+            "zero or too many digits)"
+        )
+    return value
 
 def parse_equation(equation: str) -> dict[str, float]:
     """Signed stoichiometric coefficients of a reaction equation.
@@ -78,7 +89,7 @@ def parse_equation(equation: str) -> dict[str, float]:
             m = _TERM.match(term)
             if not m:
                 raise InputError(f"cannot read the term {term.strip()!r} of equation {equation!r}")
-            coef = _coefficient(m.group(1)) if m.group(1) else 1.0
+            coef = _coefficient(m.group(1), equation) if m.group(1) else 1.0
             name = m.group(2)
             if name not in known:
                 raise InputError(
@@ -86,9 +97,9 @@ def parse_equation(equation: str) -> dict[str, float]:
                     f"{', '.join(sorted(known))}"
                 )
             if coef <= 0:
-                raise InputError(f"coefficient of {name} in {equation!r} must be > 0")
+                raise InputError(f"coefficient of {name} in equation {equation!r} must be > 0")
             if name in nu and np.sign(nu[name]) != sign:
-                raise InputError(f"species {name} appears on both sides of {equation!r}")
+                raise InputError(f"species {name} appears on both sides of equation {equation!r}")
             nu[name] = nu.get(name, 0.0) + sign * coef
     sset = species_set(tuple(nu))
     imbalance = sset.element_matrix @ np.array(list(nu.values()))
@@ -171,6 +182,10 @@ class ReactionSystem:
     def __init__(self, equations: Sequence):
         if isinstance(equations, str | Reaction):
             equations = [equations]
+        if not isinstance(equations, Sequence):
+            raise InputError(
+                f"equations must be an equation, a Reaction or a sequence of them, got {equations!r}"
+            )
         eqs = [e.equation if isinstance(e, Reaction) else e for e in equations]
         if not eqs:
             raise InputError("a reaction system needs at least one equation")

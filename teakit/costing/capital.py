@@ -31,7 +31,14 @@ from __future__ import annotations
 import numpy as np
 
 from teakit.errors import InputError
-from teakit.validation import check_fraction, check_positive, check_range, scalar_or_array
+from teakit.validation import (
+    broadcast_arrays,
+    check_fraction,
+    check_positive,
+    check_range,
+    finite_result,
+    scalar_or_array,
+)
 
 __all__ = [
     "LANG_FACTORS",
@@ -52,7 +59,14 @@ def _sum(name: str, costs, axis: int) -> np.ndarray:
     c = check_positive(name, costs, unit="USD", allow_zero=True)
     if c.ndim == 0:
         return c
-    return c.sum(axis=axis)
+    if isinstance(axis, bool) or not isinstance(axis, int | np.integer) or not -c.ndim <= axis < c.ndim:
+        raise InputError(
+            f"axis must be a whole number in [{-c.ndim}, {c.ndim - 1}] (the axis of the equipment "
+            f"items of {name}, shape {c.shape}), got {axis!r}"
+        )
+    with np.errstate(over="ignore", invalid="ignore"):
+        total = c.sum(axis=axis)
+    return finite_result(f"sum of {name}", total, **{name: c})
 
 
 def total_module_cost(C_BM, contingency=0.15, fee=0.03, axis: int = -1):
@@ -80,7 +94,10 @@ def total_module_cost(C_BM, contingency=0.15, fee=0.03, axis: int = -1):
     """
     a_c = check_fraction("contingency", contingency)
     a_f = check_fraction("fee", fee)
-    return scalar_or_array(_sum("C_BM", C_BM, axis) * (1.0 + a_c + a_f))
+    total, a_c, a_f = broadcast_arrays(C_BM=_sum("C_BM", C_BM, axis), contingency=a_c, fee=a_f)
+    with np.errstate(over="ignore"):
+        out = total * (1.0 + a_c + a_f)
+    return scalar_or_array(finite_result("total module cost", out, C_BM=C_BM))
 
 
 def grassroots_cost(C_BM, C_BM_base, contingency=0.15, fee=0.03, auxiliary=0.50, axis: int = -1):
@@ -115,7 +132,11 @@ def grassroots_cost(C_BM, C_BM_base, contingency=0.15, fee=0.03, auxiliary=0.50,
     """
     a_x = check_fraction("auxiliary", auxiliary)
     tm = np.asarray(total_module_cost(C_BM, contingency, fee, axis))
-    return scalar_or_array(tm + a_x * _sum("C_BM_base", C_BM_base, axis))
+    tm, a_x, base = broadcast_arrays(C_BM=tm, auxiliary=a_x,
+                                     C_BM_base=_sum("C_BM_base", C_BM_base, axis))
+    with np.errstate(over="ignore"):
+        out = tm + a_x * base
+    return scalar_or_array(finite_result("grassroots cost", out, C_BM=C_BM, C_BM_base=C_BM_base))
 
 
 def fixed_capital_investment(
@@ -176,7 +197,8 @@ def working_capital(FCI, fraction=0.15):
         Working capital [USD of the same cost year].
     """
     f = check_positive("FCI", FCI, unit="USD", allow_zero=True)
-    return scalar_or_array(f * check_fraction("fraction", fraction))
+    f, frac = broadcast_arrays(FCI=f, fraction=check_fraction("fraction", fraction))
+    return scalar_or_array(f * frac)
 
 
 def capital_breakdown(
@@ -213,14 +235,17 @@ def capital_breakdown(
         (0 unless grassroots), ``fixed_capital``, ``working_capital`` and ``total_capital``
         [USD of the cost year], each a float or an array over the batch.
     """
-    bm = _sum("C_BM", C_BM, axis)
-    a_c = check_fraction("contingency", contingency)
-    a_f = check_fraction("fee", fee)
     tm = np.asarray(total_module_cost(C_BM, contingency, fee, axis))
     fci = np.asarray(
         fixed_capital_investment(C_BM, C_BM_base, contingency, fee, auxiliary, grassroots, axis)
     )
     wc = np.asarray(working_capital(fci, working_capital_fraction))
+    bm, a_c, a_f, tm, fci, wc = broadcast_arrays(
+        C_BM=_sum("C_BM", C_BM, axis), contingency=check_fraction("contingency", contingency),
+        fee=check_fraction("fee", fee), total_module=tm, fixed_capital=fci, working_capital=wc,
+    )
+    with np.errstate(over="ignore"):
+        finite_result("total capital", fci + wc, C_BM=C_BM, C_BM_base=C_BM_base)
     return {
         "bare_module": scalar_or_array(bm),
         "contingency": scalar_or_array(a_c * bm),
@@ -267,4 +292,7 @@ def lang_estimate(delivered_equipment_cost, plant_type: str = "fluid", factor=No
         f = LANG_FACTORS[plant_type]
     else:
         f = check_range("factor", factor, 1.0, 10.0)
-    return scalar_or_array(_sum("delivered_equipment_cost", delivered_equipment_cost, axis) * f)
+    with np.errstate(over="ignore"):
+        out = _sum("delivered_equipment_cost", delivered_equipment_cost, axis) * f
+    return scalar_or_array(finite_result("Lang estimate", out,
+                                         delivered_equipment_cost=delivered_equipment_cost))

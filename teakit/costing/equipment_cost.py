@@ -21,6 +21,10 @@ D in m; S E = 850 bar, corrosion allowance 0.00315 m, minimum thickness 0.0063 m
    \\frac{\\frac{(P+1) D}{2 [850 - 0.6 (P+1)]} + 0.00315}{0.0063}\\right),
    \\qquad F_{P,\\mathrm{vessel}} = 1.25 \\text{ for } P < -0.5 \\text{ barg}
 
+The thickness inside this factor is a costing device with fixed S E, not a wall thickness for
+any real vessel (see :mod:`teakit.equipment.vessel` for a preliminary sizing; the applicable
+pressure-vessel code, local regulations and a licensed engineer govern design).
+
 Bare-module cost, Eq. (A.4) with Table A.4 (vessels, towers, heat exchangers, pumps) or with the
 bare-module factors of Table A.6 / Figure A.19 (compressors, drives, fans, fired heaters, packing):
 
@@ -50,7 +54,13 @@ from teakit.costing._range import RANGE_FACTOR, apply_range_policy
 from teakit.costing.escalation import TURTON_CEPCI_BASIS, _as_index
 from teakit.data import load_table
 from teakit.errors import InputError
-from teakit.validation import check_positive, check_range, scalar_or_array
+from teakit.validation import (
+    broadcast_arrays,
+    check_positive,
+    check_range,
+    finite_result,
+    scalar_or_array,
+)
 
 __all__ = [
     "VESSEL_CORROSION_ALLOWANCE",
@@ -364,7 +374,7 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
         d = check_positive("D", D, unit="m")
         top = float(rows["P_high"].max())
         apply_range_policy(
-            f"pressure of {kind}",
+            f"P_barg (pressure of {kind})",
             p,
             _FULL_VACUUM_BARG,
             top,
@@ -372,14 +382,16 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
             f"{_SOURCE_P} (vessel thickness formula)",
             hard_high=float(hard.iloc[0]) if hard.size else top * RANGE_FACTOR,
         )
-        return scalar_or_array(_vessel_fp(p, d))
+        with np.errstate(over="ignore", invalid="ignore"):
+            fp = _vessel_fp(p, d)
+        return scalar_or_array(finite_result("pressure factor", fp, P_barg=p, D=d))
     kpa = rows["P_variable"].iloc[0] == "kPa"
     pv = p * 100.0 if kpa else p
     unit = "kPa" if kpa else "barg"
     top = float(rows["P_high"].max())
     hard_high = float(hard.iloc[0]) * (100.0 if kpa else 1.0) if hard.size else top * RANGE_FACTOR
     apply_range_policy(
-        f"pressure {'rise ' if kpa else ''}of {kind}",
+        f"P_barg (pressure {'rise ' if kpa else ''}of {kind}{', in kPa' if kpa else ''})",
         pv,
         float(rows["P_low"].min()),
         top,
@@ -564,7 +576,8 @@ def bare_module_cost(
         fbm = bare_module_factor(kind, material)
         cbm = cp * fbm * fp
         out["F_BM"] = fbm
-    cbm = cbm * ratio
+    cbm = finite_result(f"bare-module cost of {kind}", cbm * ratio, capacity=capacity,
+                        P_barg=P_barg, D=D, cepci_target=cepci_target)
     if not details:
         return scalar_or_array(cbm)
     a = check_positive("capacity", capacity)
@@ -615,7 +628,9 @@ def base_bare_module_cost(kind: str, capacity, cepci_target=None, *, parallel: b
         rows = _material_rows(kind)[0]
         cs = rows[rows["material"].str.lower() == "cs"]
         f = float(cs["F_BM"].iloc[0]) if len(cs) else float(rows["F_BM"].min())
-    return scalar_or_array(cp * f * _target_ratio(cepci_target))
+    return scalar_or_array(finite_result(f"base bare-module cost of {kind}",
+                                         cp * f * _target_ratio(cepci_target), capacity=capacity,
+                                         cepci_target=cepci_target))
 
 
 def vessel_diameter(volume, L_over_D=3.0):
@@ -639,7 +654,10 @@ def vessel_diameter(volume, L_over_D=3.0):
     """
     v = check_positive("volume", volume, unit="m^3")
     r = check_range("L_over_D", L_over_D, 1.0, 20.0)
-    return scalar_or_array((4.0 * v / (math.pi * r)) ** (1.0 / 3.0))
+    v, r = broadcast_arrays(volume=v, L_over_D=r)
+    with np.errstate(over="ignore"):
+        d = (4.0 * v / (math.pi * r)) ** (1.0 / 3.0)
+    return scalar_or_array(finite_result("vessel diameter", d, volume=v, L_over_D=r))
 
 
 def vessel_cost_from_mass(mass_kg, cost_per_kg=10.0, installation_factor=4.07):
@@ -671,4 +689,8 @@ def vessel_cost_from_mass(mass_kg, cost_per_kg=10.0, installation_factor=4.07):
     m = check_positive("mass_kg", mass_kg, unit="kg")
     c = check_positive("cost_per_kg", cost_per_kg, unit="USD/kg")
     f = check_range("installation_factor", installation_factor, 1.0, 10.0)
-    return scalar_or_array(m * c * f)
+    m, c, f = broadcast_arrays(mass_kg=m, cost_per_kg=c, installation_factor=f)
+    with np.errstate(over="ignore"):
+        cost = m * c * f
+    return scalar_or_array(finite_result("vessel cost", cost, mass_kg=m, cost_per_kg=c,
+                                         installation_factor=f))

@@ -29,7 +29,13 @@ import numpy as np
 from teakit.costing._range import apply_range_policy
 from teakit.data import load_table
 from teakit.errors import InputError
-from teakit.validation import check_finite, check_positive, scalar_or_array
+from teakit.validation import (
+    broadcast_arrays,
+    check_finite,
+    check_positive,
+    finite_result,
+    scalar_or_array,
+)
 
 __all__ = [
     "TURTON_CEPCI_BASIS",
@@ -142,7 +148,11 @@ def escalate(cost, from_index_or_year, to_index_or_year):
     c = check_finite("cost", cost)
     i_from = _as_index("from_index_or_year", from_index_or_year)
     i_to = _as_index("to_index_or_year", to_index_or_year)
-    return scalar_or_array(c * i_to / i_from)
+    c, i_from, i_to = broadcast_arrays(cost=c, from_index_or_year=i_from, to_index_or_year=i_to)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = c * i_to / i_from
+    return scalar_or_array(finite_result("escalated cost", out, cost=c,
+                                         from_index_or_year=i_from, to_index_or_year=i_to))
 
 
 def capacity_scale(cost_ref, capacity_ref, capacity, exponent=0.6):
@@ -181,6 +191,7 @@ def capacity_scale(cost_ref, capacity_ref, capacity, exponent=0.6):
     a_ref = check_positive("capacity_ref", capacity_ref)
     a = check_positive("capacity", capacity)
     n = check_positive("exponent", exponent)
+    c, a_ref, a, n = broadcast_arrays(cost_ref=c, capacity_ref=a_ref, capacity=a, exponent=n)
     if (n > 1.5).any():
         raise InputError(f"exponent must lie in (0, 1.5], got {float(np.max(n)):g}")
     ratio = a / a_ref
@@ -192,4 +203,7 @@ def capacity_scale(cost_ref, capacity_ref, capacity, exponent=0.6):
         "(-)",
         "the six-tenths rule (common practice, about a factor of 10 either way)",
     )
-    return scalar_or_array(c * ratio**n)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = c * ratio**n
+    return scalar_or_array(finite_result("scaled cost", out, cost_ref=c, capacity_ref=a_ref,
+                                         capacity=a, exponent=n))

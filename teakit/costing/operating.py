@@ -30,7 +30,14 @@ import numpy as np
 import pandas as pd
 
 from teakit.errors import InputError
-from teakit.validation import check_finite, check_positive, check_range, scalar_or_array
+from teakit.validation import (
+    broadcast_arrays,
+    check_finite,
+    check_positive,
+    check_range,
+    finite_result,
+    scalar_or_array,
+)
 
 __all__ = [
     "DEFAULT_OPERATING_HOURS",
@@ -151,7 +158,12 @@ def electricity_cost(power_W, price_USD_per_kWh, hours=DEFAULT_OPERATING_HOURS):
     """
     w = check_positive("power_W", power_W, unit="W", allow_zero=True)
     p = check_positive("price_USD_per_kWh", price_USD_per_kWh, unit="USD/kWh", allow_zero=True)
-    return scalar_or_array(w / _W_PER_KW * p * _hours(hours))
+    h = _hours(hours)
+    w, p, h = broadcast_arrays(power_W=w, price_USD_per_kWh=p, hours=h)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = w / _W_PER_KW * p * h
+    return scalar_or_array(finite_result("electricity cost", out, power_W=w,
+                                         price_USD_per_kWh=p, hours=h))
 
 
 def heat_cost(duty_W, price_USD_per_GJ, efficiency=1.0, hours=DEFAULT_OPERATING_HOURS):
@@ -182,7 +194,12 @@ def heat_cost(duty_W, price_USD_per_GJ, efficiency=1.0, hours=DEFAULT_OPERATING_
     q = check_positive("duty_W", duty_W, unit="W", allow_zero=True)
     p = check_positive("price_USD_per_GJ", price_USD_per_GJ, unit="USD/GJ", allow_zero=True)
     eta = check_range("efficiency", efficiency, 0.0, 1.0, inclusive=(False, True))
-    return scalar_or_array(q / eta * _S_PER_H * _hours(hours) / _J_PER_GJ * p)
+    h = _hours(hours)
+    q, p, eta, h = broadcast_arrays(duty_W=q, price_USD_per_GJ=p, efficiency=eta, hours=h)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = q / eta * _S_PER_H * h / _J_PER_GJ * p
+    return scalar_or_array(finite_result("heat cost", out, duty_W=q, price_USD_per_GJ=p,
+                                         efficiency=eta, hours=h))
 
 
 def cooling_water_cost(duty_W, price_USD_per_GJ, hours=DEFAULT_OPERATING_HOURS):
@@ -230,7 +247,10 @@ def refrigeration_cost(duty_W, cop, price_USD_per_kWh, hours=DEFAULT_OPERATING_H
     """
     q = check_positive("duty_W", duty_W, unit="W", allow_zero=True)
     c = check_range("cop", cop, 0.0, 20.0, inclusive=(False, True))
-    return electricity_cost(q / c, price_USD_per_kWh, hours)
+    q, c = broadcast_arrays(duty_W=q, cop=c)
+    with np.errstate(over="ignore"):
+        w = finite_result("refrigeration power", q / c, duty_W=q, cop=c)
+    return electricity_cost(w, price_USD_per_kWh, hours)
 
 
 def catalyst_cost(volume_m3, bulk_density_kg_m3, price_USD_per_kg, life_yr):
@@ -258,7 +278,12 @@ def catalyst_cost(volume_m3, bulk_density_kg_m3, price_USD_per_kg, life_yr):
     rho = check_positive("bulk_density_kg_m3", bulk_density_kg_m3, unit="kg/m^3")
     p = check_positive("price_USD_per_kg", price_USD_per_kg, unit="USD/kg", allow_zero=True)
     life = check_positive("life_yr", life_yr, unit="yr")
-    return scalar_or_array(v * rho * p / life)
+    v, rho, p, life = broadcast_arrays(volume_m3=v, bulk_density_kg_m3=rho, price_USD_per_kg=p,
+                                       life_yr=life)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = v * rho * p / life
+    return scalar_or_array(finite_result("catalyst cost", out, volume_m3=v, bulk_density_kg_m3=rho,
+                                         price_USD_per_kg=p, life_yr=life))
 
 
 def raw_material_cost(flow_kg_s, price_USD_per_kg, hours=DEFAULT_OPERATING_HOURS):
@@ -282,7 +307,12 @@ def raw_material_cost(flow_kg_s, price_USD_per_kg, hours=DEFAULT_OPERATING_HOURS
     """
     m = check_positive("flow_kg_s", flow_kg_s, unit="kg/s", allow_zero=True)
     p = check_positive("price_USD_per_kg", price_USD_per_kg, unit="USD/kg", allow_zero=True)
-    return scalar_or_array(m * _S_PER_H * _hours(hours) * p)
+    h = _hours(hours)
+    m, p, h = broadcast_arrays(flow_kg_s=m, price_USD_per_kg=p, hours=h)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = m * _S_PER_H * h * p
+    return scalar_or_array(finite_result("annual amount", out, flow_kg_s=m, price_USD_per_kg=p,
+                                         hours=h))
 
 
 def product_revenue(flow_kg_s, price_USD_per_kg, hours=DEFAULT_OPERATING_HOURS):
@@ -327,7 +357,11 @@ def emissions_cost(mass_kg_per_yr, price_USD_per_t):
     """
     m = check_positive("mass_kg_per_yr", mass_kg_per_yr, unit="kg/yr", allow_zero=True)
     p = check_positive("price_USD_per_t", price_USD_per_t, unit="USD/t", allow_zero=True)
-    return scalar_or_array(m / 1000.0 * p)
+    m, p = broadcast_arrays(mass_kg_per_yr=m, price_USD_per_t=p)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = m / 1000.0 * p
+    return scalar_or_array(finite_result("emissions cost", out, mass_kg_per_yr=m,
+                                         price_USD_per_t=p))
 
 
 def operators_per_shift(n_nonparticulate, n_particulate=0):
@@ -350,7 +384,11 @@ def operators_per_shift(n_nonparticulate, n_particulate=0):
     """
     nnp = check_positive("n_nonparticulate", n_nonparticulate, allow_zero=True)
     npart = check_positive("n_particulate", n_particulate, allow_zero=True)
-    return scalar_or_array(np.sqrt(6.29 + 31.7 * npart**2 + 0.23 * nnp))
+    nnp, npart = broadcast_arrays(n_nonparticulate=nnp, n_particulate=npart)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = np.sqrt(6.29 + 31.7 * npart**2 + 0.23 * nnp)
+    return scalar_or_array(finite_result("operators per shift", out, n_nonparticulate=nnp,
+                                         n_particulate=npart))
 
 
 def operating_labour_cost(
@@ -386,10 +424,18 @@ def operating_labour_cost(
     """
     s = check_positive("salary_USD_per_yr", salary_USD_per_yr, unit="USD/yr")
     k = check_range("operators_per_position", operators_per_position, 1.0, 10.0)
-    hired = np.asarray(operators_per_shift(n_nonparticulate, n_particulate)) * k
+    hired, s, k = broadcast_arrays(
+        operators=operators_per_shift(n_nonparticulate, n_particulate), salary_USD_per_yr=s,
+        operators_per_position=k,
+    )
+    hired = hired * k
     if round_up:
         hired = np.ceil(hired - 1e-9)
-    return scalar_or_array(hired * s)
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = hired * s
+    return scalar_or_array(finite_result("operating labour cost", out,
+                                         n_nonparticulate=n_nonparticulate,
+                                         salary_USD_per_yr=s, n_particulate=n_particulate))
 
 
 def cost_of_manufacture(FCI, C_OL, C_UT, C_WT, C_RM, depreciation=False):
@@ -424,8 +470,12 @@ def cost_of_manufacture(FCI, C_OL, C_UT, C_WT, C_RM, depreciation=False):
     fci = check_positive("FCI", FCI, unit="USD", allow_zero=True)
     ol = _money("C_OL", C_OL)
     ut, wt, rm = _money("C_UT", C_UT), _money("C_WT", C_WT), _money("C_RM", C_RM)
+    fci, ol, ut, wt, rm = broadcast_arrays(FCI=fci, C_OL=ol, C_UT=ut, C_WT=wt, C_RM=rm)
     a = 0.180 + DEPRECIATION_FRACTION if depreciation else 0.180
-    return scalar_or_array(a * fci + 2.73 * ol + 1.23 * (ut + wt + rm))
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = a * fci + 2.73 * ol + 1.23 * (ut + wt + rm)
+    return scalar_or_array(finite_result("cost of manufacture", out, FCI=fci, C_OL=ol, C_UT=ut,
+                                         C_WT=wt, C_RM=rm))
 
 
 def com_breakdown(FCI, C_OL, C_UT, C_WT, C_RM) -> dict:
@@ -454,10 +504,13 @@ def com_breakdown(FCI, C_OL, C_UT, C_WT, C_RM) -> dict:
     fci = check_positive("FCI", FCI, unit="USD", allow_zero=True)
     ol = _money("C_OL", C_OL)
     ut, wt, rm = _money("C_UT", C_UT), _money("C_WT", C_WT), _money("C_RM", C_RM)
+    fci, ol, ut, wt, rm = broadcast_arrays(FCI=fci, C_OL=ol, C_UT=ut, C_WT=wt, C_RM=rm)
     a_fci = sum(v[0] for v in TABLE_8_2.values())
     a_ol = 1.0 + sum(v[1] for v in TABLE_8_2.values())
     a_com = sum(v[2] for v in TABLE_8_2.values())
-    com = (rm + wt + ut + a_ol * ol + a_fci * fci) / (1.0 - a_com)
+    with np.errstate(over="ignore", invalid="ignore"):
+        com = (rm + wt + ut + a_ol * ol + a_fci * fci) / (1.0 - a_com)
+    finite_result("cost of manufacture", com, FCI=fci, C_OL=ol, C_UT=ut, C_WT=wt, C_RM=rm)
     items = {
         "raw_materials": rm,
         "waste_treatment": wt,
@@ -527,7 +580,15 @@ def operating_breakdown(
             out[k] = scalar_or_array(v)
 
     def total(g):
-        return sum(groups[g].values(), np.asarray(0.0))
+        items = groups[g]
+        try:
+            np.broadcast_shapes(*(np.shape(v) for v in items.values()))
+        except ValueError:
+            shapes = ", ".join(f"{k!r} {np.shape(v)}" for k, v in items.items())
+            raise InputError(f"the items of {g} do not broadcast against each other: {shapes}") from None
+        with np.errstate(over="ignore", invalid="ignore"):
+            t = sum(items.values(), np.asarray(0.0))
+        return finite_result(f"total of {g}", t, **{f"{g}[{k!r}]": v for k, v in items.items()})
 
     c_ut, c_rm, c_wt = total("utilities"), total("raw_materials"), total("waste_treatment")
     c_ol = _money("C_OL", C_OL)
@@ -541,7 +602,7 @@ def operating_breakdown(
         "COM_d": com,
         "revenue": rev,
         "credits": cred,
-        "margin": rev + cred - com,
+        "margin": finite_result("margin", rev + cred - com, revenues=rev, credits=cred, COM_d=com),
     }
     for k, v in summary.items():
         if k in out:
@@ -570,7 +631,14 @@ def breakdown_frame(breakdown: dict, units=None, default_unit: str = "USD/yr") -
     if not isinstance(breakdown, dict) or not breakdown:
         raise InputError("breakdown must be a non-empty dict of item name -> value")
     units = units or {}
-    arrays = np.broadcast_arrays(*(check_finite(k, v) for k, v in breakdown.items()))
+    try:
+        arrays = np.broadcast_arrays(*(check_finite(f"breakdown[{k!r}]", v)
+                                       for k, v in breakdown.items()))
+    except ValueError as exc:
+        if isinstance(exc, InputError):
+            raise
+        shapes = ", ".join(f"{k!r} {np.shape(v)}" for k, v in breakdown.items())
+        raise InputError(f"the items of breakdown do not broadcast against each other: {shapes}") from None
     cols = {
         f"{k} [{units.get(k, default_unit)}]": np.atleast_1d(a).ravel()
         for k, a in zip(breakdown, arrays, strict=True)

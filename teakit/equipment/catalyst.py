@@ -16,7 +16,7 @@ from typing import NamedTuple
 import numpy as np
 
 from teakit.errors import InputError
-from teakit.validation import broadcast_arrays, check_positive, scalar_or_array
+from teakit.validation import broadcast_arrays, check_positive, finite_result, scalar_or_array
 
 __all__ = [
     "NORMAL_MOLAR_VOLUME",
@@ -79,7 +79,9 @@ def catalyst_mass(volume, bulk_density):
     V = check_positive("volume", volume, "m3", allow_zero=True)
     rho = check_positive("bulk_density", bulk_density, "kg/m3")
     V, rho = broadcast_arrays(volume=V, bulk_density=rho)
-    return scalar_or_array(V * rho)
+    with np.errstate(over="ignore", invalid="ignore"):
+        m = V * rho
+    return scalar_or_array(finite_result("catalyst mass", m, volume=V, bulk_density=rho))
 
 
 def catalyst_bed_dimensions(volume, diameter=None, L_over_D=None) -> BedDimensions:
@@ -117,12 +119,18 @@ def catalyst_bed_dimensions(volume, diameter=None, L_over_D=None) -> BedDimensio
     if diameter is not None:
         D = check_positive("diameter", diameter, "m")
         V, D = broadcast_arrays(volume=V, diameter=D)
-        H = 4.0 * V / (np.pi * D**2)
+        with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+            H = 4.0 * V / (np.pi * D**2)
+        inputs = dict(volume=V, diameter=D)
     else:
         r = check_positive("L_over_D", L_over_D)
         V, r = broadcast_arrays(volume=V, L_over_D=r)
-        D = np.cbrt(4.0 * V / (np.pi * r))
-        H = r * D
+        with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+            D = np.cbrt(4.0 * V / (np.pi * r))
+            H = r * D
+        inputs = dict(volume=V, L_over_D=r)
+    for a in (D, H):
+        finite_result("bed dimensions", a, **inputs)
     return BedDimensions(scalar_or_array(D), scalar_or_array(H))
 
 
@@ -144,7 +152,8 @@ def normal_volumetric_flow(molar_flow):
         Volumetric flow at normal conditions [m3/s].
     """
     n = check_positive("molar_flow", molar_flow, "mol/s", allow_zero=True)
-    return scalar_or_array(n * NORMAL_MOLAR_VOLUME)
+    return scalar_or_array(finite_result("normal volumetric flow", n * NORMAL_MOLAR_VOLUME,
+                                         molar_flow=n))
 
 
 def gas_hourly_space_velocity(normal_flow, volume):
@@ -172,7 +181,10 @@ def gas_hourly_space_velocity(normal_flow, volume):
     Q = check_positive("normal_flow", normal_flow, "m3/s", allow_zero=True)
     V = check_positive("volume", volume, "m3")
     Q, V = broadcast_arrays(normal_flow=Q, volume=V)
-    return scalar_or_array(3600.0 * Q / V)
+    with np.errstate(over="ignore"):
+        ghsv = 3600.0 * Q / V
+    return scalar_or_array(finite_result("gas hourly space velocity", ghsv, normal_flow=Q,
+                                         volume=V))
 
 
 def catalyst_volume_from_space_velocity(normal_flow, ghsv):
@@ -197,4 +209,6 @@ def catalyst_volume_from_space_velocity(normal_flow, ghsv):
     Q = check_positive("normal_flow", normal_flow, "m3/s", allow_zero=True)
     s = check_positive("ghsv", ghsv, "1/h")
     Q, s = broadcast_arrays(normal_flow=Q, ghsv=s)
-    return scalar_or_array(3600.0 * Q / s)
+    with np.errstate(over="ignore"):
+        V = 3600.0 * Q / s
+    return scalar_or_array(finite_result("catalyst volume", V, normal_flow=Q, ghsv=s))

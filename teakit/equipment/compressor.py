@@ -50,6 +50,7 @@ from teakit.validation import (
     broadcast_arrays,
     check_positive,
     check_range,
+    finite_result,
     scalar_or_array,
 )
 
@@ -73,8 +74,12 @@ def _head(T_in, pressure_ratio, exponent, Z, name):
     r = check_range("pressure_ratio", pressure_ratio, 1.0, np.inf)
     x = check_range(name, exponent, 1.0, np.inf, inclusive=(False, True))
     Z = check_positive("Z", Z)
+    T_in, r, x, Z = broadcast_arrays(T_in=T_in, pressure_ratio=r, **{name: x}, Z=Z)
     e = (x - 1.0) / x
-    return scalar_or_array(Z * R * T_in / e * (r**e - 1.0))
+    with np.errstate(over="ignore", invalid="ignore"):
+        w = Z * R * T_in / e * (r**e - 1.0)
+    return scalar_or_array(finite_result(f"head (with {name})", w, T_in=T_in, pressure_ratio=r,
+                                         **{name: x}, Z=Z))
 
 
 def isentropic_head(T_in, pressure_ratio, k, Z=1.0):
@@ -160,8 +165,11 @@ class CompressionResult:
 def _composition(composition, names=None):
     if isinstance(composition, Mapping):
         names = tuple(composition)
-        y = [check_range(f"composition[{k!r}]", v, 0.0, 1.0) for k, v in composition.items()]
-        y = np.stack(np.broadcast_arrays(*y), axis=-1)
+        if not names:
+            raise InputError("composition must name at least one species, got an empty mapping")
+        y = {f"composition[{k!r}]": check_range(f"composition[{k!r}]", v, 0.0, 1.0)
+             for k, v in composition.items()}
+        y = np.stack(broadcast_arrays(**y), axis=-1)
     else:
         if names is None:
             raise InputError("composition must be a mapping {species: mole fraction} or an array with species=")
@@ -241,6 +249,12 @@ def compression_detail(
 ) -> CompressionResult:
     """Multi-stage compression with intercooling: power, discharge temperatures, duties.
 
+    Preliminary estimate: the discharge temperatures and their margin against
+    ``T_discharge_max`` screen operating points; they are not a machine rating. Compressor
+    selection, the real discharge-temperature limit (API 617/618 and the vendor), and materials
+    and seals for hydrogen or ammonia service are for the vendor, the applicable codes, local
+    regulations and a licensed engineer.
+
     Parameters
     ----------
     flow : array_like
@@ -284,14 +298,24 @@ def compression_detail(
     P_out = check_positive("P_out", P_out, "Pa")
     eta = check_range("efficiency", efficiency, 0.0, 1.0, inclusive=(False, True))
     T_ic = T_in if T_intercool is None else check_positive("T_intercool", T_intercool, "K")
+    T_dmax = check_positive("T_discharge_max", T_discharge_max, "K")
     sset, y = _composition(composition, species)
-    flow, T_in, P_in, P_out, eta, T_ic = broadcast_arrays(
-        flow=flow, T_in=T_in, P_in=P_in, P_out=P_out, efficiency=eta, T_intercool=T_ic
+    flow, T_in, P_in, P_out, eta, T_ic, T_dmax = broadcast_arrays(
+        flow=flow, T_in=T_in, P_in=P_in, P_out=P_out, efficiency=eta, T_intercool=T_ic,
+        T_discharge_max=T_dmax,
     )
     if np.any(P_out < P_in):
         raise InputError("P_out must be >= P_in (this is a compressor, not an expander)")
-    shape = np.broadcast_shapes(flow.shape, y.shape[:-1])
-    flow, T_in, P_in, P_out, eta, T_ic = (np.broadcast_to(a, shape) for a in (flow, T_in, P_in, P_out, eta, T_ic))
+    try:
+        shape = np.broadcast_shapes(flow.shape, y.shape[:-1])
+    except ValueError:
+        raise InputError(
+            f"composition (batch shape {y.shape[:-1]}) does not broadcast with flow, T_in, P_in, "
+            f"P_out, efficiency and T_intercool (shape {flow.shape})"
+        ) from None
+    flow, T_in, P_in, P_out, eta, T_ic, T_dmax = (
+        np.broadcast_to(a, shape) for a in (flow, T_in, P_in, P_out, eta, T_ic, T_dmax)
+    )
     y = np.broadcast_to(y, shape + (sset.n,))
     sset.check_T(T_in, "T_in")
     k = kij_matrix(sset, kij)
@@ -316,13 +340,19 @@ def compression_detail(
         T1, P1 = (T_ic if T_intercool is not None else T_in), P2
     stage_power = np.stack(stage_w, axis=-1)
     T_discharge = np.stack(T_dis, axis=-1)
+    duties = np.stack(duty, axis=-1)
+    margin = T_dmax - T_discharge.max(axis=-1)
+    inputs = dict(flow=flow, T_in=T_in, P_in=P_in, P_out=P_out, efficiency=eta, T_intercool=T_ic,
+                  T_discharge_max=T_dmax)
+    for a in (stage_power, T_discharge, duties, margin, stage_power.sum(axis=-1)):
+        finite_result("compression", a, **inputs)
     return CompressionResult(
         power=scalar_or_array(stage_power.sum(axis=-1)),
         stage_power=stage_power,
         T_discharge=T_discharge,
-        intercooler_duty=np.stack(duty, axis=-1),
+        intercooler_duty=duties,
         stage_ratio=scalar_or_array(ratio),
-        discharge_margin=scalar_or_array(T_discharge_max - T_discharge.max(axis=-1)),
+        discharge_margin=scalar_or_array(margin),
         method=method,
     )
 

@@ -23,6 +23,7 @@ from teakit.validation import (
     check_finite,
     check_positive,
     check_range,
+    finite_result,
     scalar_or_array,
 )
 
@@ -100,9 +101,14 @@ def lmtd(dT1, dT2):
     a, b = broadcast_arrays(dT1=a, dT2=b)
     x = (b - a) / a  # b - a is exact when the two are close
     small = np.abs(x) < 1e-4
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ratio = np.where(small, 1.0 + x / 2.0 - x * x / 12.0, x / np.log1p(np.where(small, 1.0, x)))
-    return scalar_or_array(a * ratio)
+    near = np.abs(x) < 0.5
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        # log1p keeps its precision for nearby differences; far apart (where 1 + x may round
+        # to 0 or overflow) the difference of the logarithms
+        log_ratio = np.where(near, np.log1p(np.where(near, x, 0.0)), np.log(b) - np.log(a))
+        lm = np.where(small, a * (1.0 + x / 2.0 - x * x / 12.0),
+                      (b - a) / np.where(log_ratio == 0.0, 1.0, log_ratio))
+    return scalar_or_array(finite_result("lmtd", lm, dT1=a, dT2=b))
 
 
 def exchanger_area(duty, U, dT1, dT2, F=1.0):
@@ -157,7 +163,9 @@ def exchanger_area(duty, U, dT1, dT2, F=1.0):
         )
     dTlm = lmtd(dT1, dT2)
     Q, U, F, dTlm = broadcast_arrays(duty=Q, U=U, F=F, lmtd=dTlm)
-    return scalar_or_array(Q / (U * F * dTlm))
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        A = Q / (U * F * dTlm)
+    return scalar_or_array(finite_result("exchanger area", A, duty=Q, U=U, F=F, dT1=dT1, dT2=dT2))
 
 
 def fired_heater_fuel(duty, efficiency):
@@ -185,7 +193,9 @@ def fired_heater_fuel(duty, efficiency):
     Q = check_positive("duty", duty, "W", allow_zero=True)
     eta = check_range("efficiency", efficiency, 0.0, 1.0, inclusive=(False, True))
     Q, eta = broadcast_arrays(duty=Q, efficiency=eta)
-    return scalar_or_array(Q / eta)
+    with np.errstate(over="ignore"):
+        fuel = Q / eta
+    return scalar_or_array(finite_result("fired-heater fuel", fuel, duty=Q, efficiency=eta))
 
 
 def cooling_water_flow(duty, dT_water, cp=WATER_CP):
@@ -213,4 +223,6 @@ def cooling_water_flow(duty, dT_water, cp=WATER_CP):
     dT = check_positive("dT_water", dT_water, "K")
     cp = check_positive("cp", cp, "J/(kg K)")
     Q, dT, cp = broadcast_arrays(duty=Q, dT_water=dT, cp=cp)
-    return scalar_or_array(Q / (cp * dT))
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        m = Q / (cp * dT)
+    return scalar_or_array(finite_result("cooling-water flow", m, duty=Q, dT_water=dT, cp=cp))

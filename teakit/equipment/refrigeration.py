@@ -5,6 +5,11 @@ refrigerant (usually ammonia) evaporates at 240-270 K and condenses against cool
 air at 305-320 K. Temperatures [K], duties and powers [W]. Vectorised; scalars in give a
 ``float`` out.
 
+Caution: the power is a preliminary estimate. An ammonia refrigeration circuit holds a toxic
+(and, in air, flammable) inventory that teakit does not size or assess; its design, charge and
+machinery-room requirements follow the applicable refrigeration safety standard, local
+regulations and a licensed engineer.
+
 References
 ----------
 The Carnot (reversed) cycle bound on the coefficient of performance of a refrigerator, e.g.
@@ -14,8 +19,16 @@ refrigerator), from memory.
 
 from __future__ import annotations
 
+import numpy as np
+
 from teakit.errors import InputError
-from teakit.validation import broadcast_arrays, check_positive, check_range, scalar_or_array
+from teakit.validation import (
+    broadcast_arrays,
+    check_positive,
+    check_range,
+    finite_result,
+    scalar_or_array,
+)
 
 __all__ = ["DEFAULT_FRACTION_OF_CARNOT", "carnot_cop", "refrigeration_power"]
 
@@ -65,7 +78,9 @@ def carnot_cop(T_evap, T_cond):
         ``T_cond <= T_evap`` or a non-positive temperature.
     """
     Te, Tc = _temperatures(T_evap, T_cond)
-    return scalar_or_array(Te / (Tc - Te))
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        cop = Te / (Tc - Te)
+    return scalar_or_array(finite_result("carnot_cop", cop, T_evap=Te, T_cond=Tc))
 
 
 def refrigeration_power(duty, T_evap, T_cond, fraction_of_carnot=DEFAULT_FRACTION_OF_CARNOT):
@@ -106,4 +121,7 @@ def refrigeration_power(duty, T_evap, T_cond, fraction_of_carnot=DEFAULT_FRACTIO
     phi = check_range("fraction_of_carnot", fraction_of_carnot, 0.0, 1.0, inclusive=(False, True))
     Te, Tc = _temperatures(T_evap, T_cond)
     Q, phi, Te, Tc = broadcast_arrays(duty=Q, fraction_of_carnot=phi, T_evap=Te, T_cond=Tc)
-    return scalar_or_array(Q * (Tc - Te) / (phi * Te))
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        W = Q * (Tc - Te) / (phi * Te)
+    return scalar_or_array(finite_result("refrigeration power", W, duty=Q, T_evap=Te, T_cond=Tc,
+                                         fraction_of_carnot=phi))

@@ -64,7 +64,13 @@ import numpy as np
 
 from teakit.data import load_table
 from teakit.errors import InputError, OutOfRangeError, RangeWarning
-from teakit.validation import broadcast_arrays, check_positive, check_range, scalar_or_array
+from teakit.validation import (
+    broadcast_arrays,
+    check_positive,
+    check_range,
+    finite_result,
+    scalar_or_array,
+)
 
 __all__ = [
     "DEFAULT_THICK_WALL_FORM",
@@ -121,7 +127,9 @@ _KNUCKLE_FRACTION = 0.06
 
 
 def _check_choice(name: str, value, choices: tuple[str, ...], aliases=None) -> str:
-    key = unicodedata.normalize("NFC", value.strip().lower()) if isinstance(value, str) else value
+    if not isinstance(value, str):
+        raise InputError(f"{name} must be one of {', '.join(map(repr, choices))}, got {value!r}")
+    key = unicodedata.normalize("NFC", value.strip().lower())
     if aliases and key in aliases:
         key = aliases[key]
     if key not in choices:
@@ -282,6 +290,9 @@ def _shell_arrays(P, D, S, E, corrosion_allowance, t_min, method, E_circumferent
     )
     code = np.where(t_p < tm, _MINIMUM, code)
     total = np.maximum(t_p, tm) + ca
+    inputs = dict(P=P, D=D, S=S, E=E, E_circumferential=Ec, corrosion_allowance=ca, t_min=tm)
+    for a in (total, t_c, t_l, margin):
+        finite_result("shell thickness", a, **inputs)
     return ShellThickness(
         thickness=scalar_or_array(total),
         pressure_thickness=scalar_or_array(t_p),
@@ -594,7 +605,10 @@ def head_thickness(
                 RangeWarning,
                 stacklevel=2,
             )
-    return scalar_or_array(t_s + ca)
+    return scalar_or_array(
+        finite_result("head thickness", t_s + ca, P=P, D=D, S=S, E=E, corrosion_allowance=ca,
+                      t_min=tm, crown_radius=Lc)
+    )
 
 
 # --------------------------------------------------------------------------------------------
@@ -655,7 +669,7 @@ def head_surface_area(D, head="ellipsoidal"):
         A = 0.5 * np.pi * D**2
     else:
         A = _torispherical_area(D, D, _KNUCKLE_FRACTION * D)
-    return scalar_or_array(A)
+    return scalar_or_array(finite_result("head surface area", A, D=D))
 
 
 def vessel_mass(
@@ -668,6 +682,10 @@ def vessel_mass(
     allowance_factor=1.0,
 ):
     r"""Metal mass of a cylindrical vessel: the shell plus two formed heads.
+
+    Preliminary estimate for costing, not for design or fabrication (no nozzles, supports or
+    internals unless ``allowance_factor`` adds them); the applicable pressure-vessel code, local
+    regulations and a licensed engineer govern.
 
     .. math::
 
@@ -725,7 +743,10 @@ def vessel_mass(
         Rc = D + 0.5 * th
         rk = _KNUCKLE_FRACTION * D + 0.5 * th
         heads = 2.0 * _torispherical_area(Dm, Rc, rk) * th
-    return scalar_or_array(f * rho * (shell + heads))
+    return scalar_or_array(
+        finite_result("vessel mass", f * rho * (shell + heads), D=D, L=L, t_shell=ts, t_head=th,
+                      density=rho, allowance_factor=f)
+    )
 
 
 # --------------------------------------------------------------------------------------------

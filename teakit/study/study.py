@@ -96,6 +96,20 @@ class _PhysicsMemo:
         return self.Q[rows], self.ok[rows], {k: v[rows] for k, v in self.state.items()}
 
 
+def _number(value, unit: str, what: str) -> float:
+    """A finite number in SI ``unit`` from a number or a string with units; InputError naming ``what``."""
+    if isinstance(value, bool) or not isinstance(value, int | float | str | np.floating | np.integer):
+        raise InputError(f"{what} must be a number or a string with units, got {value!r}")
+    v = to_si(value, unit, what) if isinstance(value, str) and unit not in ("-", "") else value
+    try:
+        v = float(v)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number, got {value!r}") from None
+    if not np.isfinite(v):
+        raise InputError(f"{what} must be finite, got {value!r}")
+    return v
+
+
 def _take(proc, idx):
     """Members ``idx`` of a ProcessResult (repeats allowed)."""
     from teakit.process.result import ProcessResult
@@ -221,10 +235,15 @@ class Study:
     source: str | None = None
 
     def __post_init__(self):
+        if not isinstance(self.case, str):
+            raise InputError(f"case must be a case name (str), got {self.case!r}")
         info = case_info(self.case)
         self._info = info
-        if self.objective not in OBJECTIVES:
+        if not isinstance(self.objective, str) or self.objective not in OBJECTIVES:
             raise InputError(f"objective must be one of {', '.join(OBJECTIVES)}, got {self.objective!r}")
+        for name in ("decisions", "parameters", "constraints"):
+            if not isinstance(getattr(self, name), Mapping):
+                raise InputError(f"{name} must be a mapping of name -> value, got {type(getattr(self, name)).__name__}")
         dspecs: dict[str, Spec] = info["decisions"]
         decs = {}
         for k, v in self.decisions.items():
@@ -233,10 +252,17 @@ class Study:
             sp = dspecs[k]
             if isinstance(v, Decision):
                 d = v
-            else:
+            elif isinstance(v, Mapping):
                 v = dict(v)
-                d = Decision(k, sp.unit, float(v.get("low", sp.low)), float(v.get("high", sp.high)),
-                             float(v.get("default", sp.default)), bool(v.get("free", True)), sp.doc)
+                bad = set(v) - {"low", "high", "default", "free"}
+                if bad:
+                    raise InputError(f"decision {k!r}: unknown key(s) {sorted(bad)}; keys: low, high, default, free")
+                d = Decision(k, sp.unit, _number(v.get("low", sp.low), sp.unit, f"decision {k!r} low"),
+                             _number(v.get("high", sp.high), sp.unit, f"decision {k!r} high"),
+                             _number(v.get("default", sp.default), sp.unit, f"decision {k!r} default"),
+                             bool(v.get("free", True)), sp.doc)
+            else:
+                raise InputError(f"decision {k!r} must be a Decision or a mapping with low, high, default, free; got {v!r}")
             if d.low < sp.low or d.high > sp.high:
                 raise InputError(
                     f"decision {k!r}: bounds [{d.low:g}, {d.high:g}] {sp.unit} must lie within the "
@@ -253,7 +279,7 @@ class Study:
             if k not in pspecs:
                 raise InputError(f"unknown parameter {k!r}; parameters: {', '.join(pspecs)}")
             sp, kind = pspecs[k]
-            p = v if isinstance(v, Parameter) else Parameter(k, sp.unit, float(v), kind, None, sp.doc)
+            p = v if isinstance(v, Parameter) else Parameter(k, sp.unit, _number(v, sp.unit, f"parameter {k!r}"), kind, None, sp.doc)
             if not sp.low <= p.nominal <= sp.high:
                 raise InputError(f"parameter {k!r} = {p.nominal:g} {sp.unit} is outside [{sp.low:g}, {sp.high:g}]")
             pars[k] = p
@@ -267,7 +293,7 @@ class Study:
             if isinstance(v, Constraint):
                 cons[k] = v
             elif k in cons:
-                cons[k] = Constraint(k, float(v), cons[k].sense, cons[k].unit)
+                cons[k] = Constraint(k, _number(v, cons[k].unit, f"constraint {k!r}"), cons[k].sense, cons[k].unit)
             else:
                 raise InputError(f"unknown constraint {k!r}; constraints: {', '.join(cons)} (or pass a Constraint)")
         self._constraints = cons

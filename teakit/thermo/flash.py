@@ -70,6 +70,10 @@ development machine (noisy, shared): 10^4 separator states of the test batch in 
 
 Limitations
 -----------
+Caution: separator compositions and liquid flows computed here set the toxic liquid-ammonia
+inventory of a loop; they are preliminary estimates, not a hazard assessment, and the
+applicable codes, local regulations and licensed engineers govern the design.
+
 Only vapour-liquid equilibrium: a feed that splits into two liquids, or lies near a mixture
 critical point or limit of stability where successive substitution stalls, raises
 ConvergenceError (no Newton stage). With zero k_ij, Peng-Robinson predicts spurious liquid-liquid
@@ -95,9 +99,9 @@ import numpy as np
 
 from teakit.errors import ConvergenceError, InputError
 from teakit.thermo.ideal_gas import h_RT
-from teakit.thermo.peng_robinson import kij_matrix, pr_mixture, pure_parameters
+from teakit.thermo.peng_robinson import kij_array, pr_mixture, pure_parameters
 from teakit.thermo.species import R, SpeciesSet, species_set
-from teakit.validation import check_finite, check_positive, check_range
+from teakit.validation import check_finite, check_positive, check_range, check_scalar
 
 __all__ = [
     "FlashEnthalpy",
@@ -194,25 +198,13 @@ def _resolve_species(species) -> SpeciesSet:
 
 
 def _kij(sset: SpeciesSet, kij) -> np.ndarray:
-    if kij is None:
-        return kij_matrix(sset)
-    if isinstance(kij, dict):
-        return kij_matrix(sset, kij)
-    k = check_finite("kij", kij)
-    if k.shape != (sset.n, sset.n):
-        raise InputError(
-            f"kij must be a ({sset.n}, {sset.n}) matrix for {', '.join(sset.names)} or a dict "
-            f"of pairs, got shape {k.shape}"
-        )
-    if not np.allclose(k, k.T) or np.any(np.diag(k) != 0.0) or np.any(np.abs(k) >= 1.0):
-        raise InputError("kij must be symmetric with a zero diagonal and entries in (-1, 1)")
-    return k
+    return kij_array(sset, kij)
 
 
 def _check_iter(max_iter, tol):
     if isinstance(max_iter, bool) or not isinstance(max_iter, (int, np.integer)) or max_iter < 1:
         raise InputError(f"max_iter must be an integer >= 1, got {max_iter!r}")
-    tol = float(check_range("tol", tol, 0.0, 1e-2, inclusive=(False, True)))
+    tol = check_scalar("tol", check_range("tol", tol, 0.0, 1e-2, inclusive=(False, True)))
     return int(max_iter), tol
 
 
@@ -766,6 +758,9 @@ def flash_tp(T, P, z, species, kij=None, max_iter=MAX_ITER, tol=TOL, K_init=None
             residuals=np.concatenate([e.residuals for _, e in failed]),
             iterations=first.iterations,
         )
+    if not parts:  # an empty batch
+        e, e2 = np.zeros(0), np.zeros((0, nc))
+        parts = [(e, e2, e2, e2, e.astype(int), e.astype(int))]
     beta, x, y, K, phases, its = (np.concatenate(a) for a in zip(*parts, strict=True))
     return FlashResult(
         beta=_scalar(_shape_out(beta, shape)),
@@ -961,7 +956,7 @@ def saturation_pressure(T, species_name, h2_quantum=True, tol=1e-12):
         raise InputError(f"species_name must be one species name (str), got {species_name!r}")
     sset = species_set([species_name])
     T = check_positive("T", T, "K")
-    tol = float(check_range("tol", tol, 0.0, 1e-3, inclusive=(False, True)))
+    tol = check_scalar("tol", check_range("tol", tol, 0.0, 1e-3, inclusive=(False, True)))
     Tc, Pc, om = float(sset.Tc[0]), float(sset.Pc[0]), float(sset.omega[0])
     if h2_quantum and species_name == "H2":
         # the effective constants of pure_parameters at their own critical temperature:

@@ -21,9 +21,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from teakit.errors import InputError
-from teakit.thermo.peng_robinson import kij_matrix, pr_mixture, pure_parameters
-from teakit.thermo.species import SpeciesSet
+from teakit.errors import InputError, OutOfRangeError
+from teakit.thermo.peng_robinson import kij_array, pr_mixture, pure_parameters
+from teakit.thermo.species import SpeciesSet, species_set
+from teakit.validation import check_finite, check_positive
 
 __all__ = ["MODELS", "FugacityModel", "dyson_simon_phi", "fugacity_model"]
 
@@ -78,13 +79,11 @@ class FugacityModel:
     """
 
     def __init__(self, eos: str, sset: SpeciesSet, kij=None):
-        if eos not in MODELS:
+        if not isinstance(eos, str) or eos not in MODELS:
             raise InputError(f"eos must be one of {', '.join(MODELS)}, got {eos!r}")
+        sset = species_set(sset)  # a SpeciesSet, or names
         self.eos, self.sset = eos, sset
-        k = kij_matrix(sset, kij if isinstance(kij, dict) else None)
-        if kij is not None and not isinstance(kij, dict):
-            k = np.asarray(kij, dtype=float)
-        self.kij = k
+        self.kij = kij_array(sset, kij)
         if eos == "dyson-simon":
             self._fitted = [n for n in ("N2", "H2", "NH3") if n in sset.names]
             if not self._fitted:
@@ -99,13 +98,47 @@ class FugacityModel:
         return f"FugacityModel({self.eos!r}, {self.sset!r})"
 
     def __call__(self, T, P, y):
-        """ln phi [-], shape broadcast(T, P, y[..., 0]) + (nc,); T [K], P [Pa], y [-]."""
-        y = np.asarray(y, dtype=float)
-        shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
-        T = np.broadcast_to(np.asarray(T, dtype=float), shape).reshape(-1)
-        P = np.broadcast_to(np.asarray(P, dtype=float), shape).reshape(-1)
-        yb = np.broadcast_to(y, shape + (self.sset.n,)).reshape(-1, self.sset.n)
-        return self.bind(T, P)(yb).reshape(shape + (self.sset.n,))
+        """ln phi [-], shape broadcast(T, P, y[..., 0]) + (nc,); T [K], P [Pa], y [-].
+
+        ``y`` is normalised here. Raises InputError for a non-positive or non-finite T or P,
+        a y of the wrong length, negative or all zero, or shapes that do not broadcast;
+        OutOfRangeError where the model gives no finite ln phi (far outside its range).
+        """
+        T = check_positive("T", T, "K")
+        P = check_positive("P", P, "Pa")
+        y = check_finite("y", y)
+        n = self.sset.n
+        if y.shape[-1:] != (n,):
+            raise InputError(
+                f"y must have a last axis of length {n} ({', '.join(self.sset.names)}), "
+                f"got shape {y.shape}"
+            )
+        if (y < 0).any():
+            raise InputError("y (mole fractions) must be >= 0")
+        tot = y.sum(axis=-1, keepdims=True)
+        if (tot <= 0).any():
+            raise InputError("y (mole fractions) must not all be zero")
+        y = y / tot
+        try:
+            shape = np.broadcast_shapes(T.shape, P.shape, y.shape[:-1])
+        except ValueError:
+            raise InputError(
+                f"T {T.shape}, P {P.shape} and y {y.shape[:-1]} (without its species axis) "
+                "do not broadcast"
+            ) from None
+        Tf = np.broadcast_to(T, shape).reshape(-1)
+        Pf = np.broadcast_to(P, shape).reshape(-1)
+        yb = np.broadcast_to(y, shape + (n,)).reshape(-1, n)
+        with np.errstate(all="ignore"):
+            out = self.bind(Tf, Pf)(yb)
+        bad = ~np.isfinite(out).all(axis=-1)
+        if bad.any():
+            k = int(np.flatnonzero(bad)[0])
+            raise OutOfRangeError(
+                f"eos={self.eos!r} gives no finite ln phi at T = {Tf[k]:g} K, P = {Pf[k]:g} Pa: "
+                "T or P is far outside the range of the model"
+            )
+        return out.reshape(shape + (n,))
 
     def bind(self, T, P):
         """Precompute at the flat state arrays T [K], P [Pa]; return ``lnphi(y, idx=None)``."""
@@ -124,7 +157,18 @@ class FugacityModel:
 
         if self.eos == "peng-robinson":
             return lnphi_pr
-        fits = np.log(np.stack(dyson_simon_phi(T, P), axis=-1))  # (..., 3) for N2, H2, NH3
+        with np.errstate(all="ignore"):
+            phi = np.stack(dyson_simon_phi(T, P), axis=-1)  # (..., 3) for N2, H2, NH3
+        bad = ~(np.isfinite(phi) & (phi > 0)).all(axis=-1)
+        if bad.any():
+            k = np.flatnonzero(bad.ravel())[0]
+            raise OutOfRangeError(
+                f"eos='dyson-simon': the fugacity-coefficient fits give a non-positive or "
+                f"non-finite value at T = {np.broadcast_to(T, bad.shape).ravel()[k]:g} K, "
+                f"P = {np.broadcast_to(P, bad.shape).ravel()[k]:g} Pa, far outside their fitted "
+                "range (about 600-800 K, 150-300 atm); use eos='peng-robinson' there"
+            )
+        fits = np.log(phi)
         col = {"N2": 0, "H2": 1, "NH3": 2}
         cols = [col[nm] for nm in self._fitted]
 
@@ -146,7 +190,7 @@ def fugacity_model(eos: str, sset: SpeciesSet, kij=None) -> FugacityModel:
     ----------
     eos : str
         One of :data:`MODELS`.
-    sset : SpeciesSet
+    sset : SpeciesSet or sequence of str
         Species, the order of the last axis of ``y``.
     kij : ndarray or dict, optional
         Peng-Robinson interaction parameters (overrides of ``data/pr_kij.csv``) [-].
@@ -155,5 +199,12 @@ def fugacity_model(eos: str, sset: SpeciesSet, kij=None) -> FugacityModel:
     -------
     FugacityModel
         ``model(T, P, y)`` gives ln phi with shape broadcast + (nc,) [-].
+
+    Raises
+    ------
+    InputError
+        An unknown model or species, or a bad ``kij``. Evaluating the model raises
+        OutOfRangeError (an InputError) where it gives no finite ln phi, e.g. the Dyson-Simon
+        fits above about 1750 K, where their fitted phi turns negative.
     """
     return FugacityModel(eos, sset, kij)

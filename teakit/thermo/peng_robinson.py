@@ -34,13 +34,14 @@ import functools
 import numpy as np
 
 from teakit.data import load_table
-from teakit.errors import InputError
+from teakit.errors import InputError, OutOfRangeError
 from teakit.thermo.species import R, SpeciesSet, species_set
 from teakit.validation import check_finite, check_positive
 
 __all__ = [
     "compressibility",
     "fugacity_coefficients",
+    "kij_array",
     "kij_matrix",
     "residual_enthalpy",
     "residual_entropy",
@@ -80,14 +81,62 @@ def kij_matrix(species, overrides=None) -> np.ndarray:
     for a in range(sset.n):
         for b in range(a + 1, sset.n):
             k[a, b] = k[b, a] = table.get(frozenset((sset.names[a], sset.names[b])), 0.0)
-    for (i, j), v in (overrides or {}).items():
+    if overrides is not None and not isinstance(overrides, dict):
+        raise InputError(f"kij overrides must be a dict {{(species_i, species_j): k_ij}}, got {overrides!r}")
+    for pair, v in (overrides or {}).items():
+        if not (isinstance(pair, tuple) and len(pair) == 2):
+            raise InputError(f"kij override keys must be pairs of species names, got {pair!r}")
+        i, j = pair
+        if not (i in sset.names and j in sset.names):
+            raise InputError(
+                f"kij override {pair!r} names a species that is not in this set; it holds "
+                f"{', '.join(sset.names)}"
+            )
         a, b = sset.index(i), sset.index(j)
         if a == b:
             raise InputError(f"kij override ({i!r}, {j!r}) must name two different species")
-        v = float(check_finite(f"kij[{i},{j}]", v))
+        v = check_finite(f"kij[{i},{j}]", v)
+        if v.ndim != 0:
+            raise InputError(f"kij[{i},{j}] must be a single number, got shape {v.shape}")
+        v = float(v)
         if not -1.0 < v < 1.0:
             raise InputError(f"kij[{i},{j}] must lie in (-1, 1), got {v}")
         k[a, b] = k[b, a] = v
+    return k
+
+
+def kij_array(sset: SpeciesSet, kij) -> np.ndarray:
+    """Checked k_ij matrix from ``kij``: None (the table), a dict of overrides or a matrix.
+
+    Parameters
+    ----------
+    sset : SpeciesSet
+        Species, in order.
+    kij : None, dict or array_like (nc, nc)
+        None: ``data/pr_kij.csv``; a dict: overrides as in :func:`kij_matrix`; a matrix: used
+        as given [-].
+
+    Returns
+    -------
+    ndarray (nc, nc)
+        k_ij [-].
+
+    Raises
+    ------
+    InputError
+        A matrix of the wrong shape, not finite, not symmetric, with a non-zero diagonal or an
+        entry outside (-1, 1); a bad override.
+    """
+    if kij is None or isinstance(kij, dict):
+        return kij_matrix(sset, kij)
+    k = check_finite("kij", kij)
+    if k.shape != (sset.n, sset.n):
+        raise InputError(
+            f"kij must be a ({sset.n}, {sset.n}) matrix for {', '.join(sset.names)} or a dict "
+            f"of pairs, got shape {k.shape}"
+        )
+    if not np.allclose(k, k.T) or np.any(np.diag(k) != 0.0) or np.any(np.abs(k) >= 1.0):
+        raise InputError("kij must be symmetric with a zero diagonal and entries in (-1, 1)")
     return k
 
 
@@ -151,10 +200,10 @@ def _vapour_root(A: np.ndarray, B: np.ndarray) -> np.ndarray:
     f = ((z + c2) * z + c1) * z + c0
     df = (3.0 * z + 2.0 * c2) * z + c1
     ok = (z > -c2 / 3.0) & (df > 0) & (np.abs(f) <= 1e-12 * np.maximum(1.0, np.abs(c0)))
-    if not ok.all():
-        bad = ~ok
-        z = z.copy()
-        z[bad] = _cubic_roots(A[bad], B[bad], "vapour")
+    if not np.all(ok):
+        bad = ~np.asarray(ok)
+        z = np.array(z, dtype=float)  # a writable copy, also for a single (0-d) state
+        z[bad] = _cubic_roots(np.asarray(A)[bad], np.asarray(B)[bad], "vapour")
     return z
 
 
@@ -271,12 +320,7 @@ def _check_inputs(T, P, y, species, phase, kij):
     if (tot <= 0).any():
         raise InputError("y (mole fractions) must not all be zero")
     y = y / tot
-    if kij is None or isinstance(kij, dict):
-        k = kij_matrix(sset, kij)
-    else:
-        k = np.asarray(kij, dtype=float)
-    if k.shape != (sset.n, sset.n):
-        raise InputError(f"kij must be a ({sset.n}, {sset.n}) matrix or a dict of pairs")
+    k = kij_array(sset, kij)
     try:
         np.broadcast_shapes(T.shape, P.shape, y.shape[:-1])
     except ValueError:
@@ -289,6 +333,25 @@ def _check_inputs(T, P, y, species, phase, kij):
 
 def _scalar(x):
     return float(x) if np.ndim(x) == 0 else x
+
+
+def _finite(what, out, T, P, per_species=False):
+    """``out``, or OutOfRangeError naming T and P where it is not finite (float overflow)."""
+    out = np.asarray(out)
+    bad = ~np.isfinite(out)
+    if per_species:
+        bad = bad.any(axis=-1)
+    if bad.any():
+        shape = bad.shape
+        k = int(np.flatnonzero(bad)[0])
+        Tk = np.broadcast_to(T, shape).ravel()[k]
+        Pk = np.broadcast_to(P, shape).ravel()[k]
+        raise OutOfRangeError(
+            f"Peng-Robinson {what} overflow float range at T = {Tk:g} K, P = {Pk:g} Pa: T is too "
+            "low or P too high for this mixture (far outside any fluid state the equation "
+            "describes)"
+        )
+    return out
 
 
 def compressibility(T, P, y, species, phase="vapour", kij=None, h2_quantum=True):
@@ -326,8 +389,9 @@ def compressibility(T, P, y, species, phase="vapour", kij=None, h2_quantum=True)
     1.0277
     """
     sset, T, P, y, k = _check_inputs(T, P, y, species, phase, kij)
-    Z, _ = pr_state(T, P, y, sset, k, phase, h2_quantum)
-    return _scalar(Z)
+    with np.errstate(all="ignore"):
+        Z, _ = pr_state(T, P, y, sset, k, phase, h2_quantum)
+    return _scalar(_finite("compressibility", Z, T, P))
 
 
 def fugacity_coefficients(T, P, y, species, phase="vapour", kij=None, h2_quantum=True):
@@ -341,8 +405,10 @@ def fugacity_coefficients(T, P, y, species, phase="vapour", kij=None, h2_quantum
         phi_i [-]; the fugacity of i is phi_i y_i P.
     """
     sset, T, P, y, k = _check_inputs(T, P, y, species, phase, kij)
-    _, lnphi = pr_state(T, P, y, sset, k, phase, h2_quantum)
-    return np.exp(lnphi)
+    with np.errstate(all="ignore"):
+        _, lnphi = pr_state(T, P, y, sset, k, phase, h2_quantum)
+        phi = np.exp(lnphi)
+    return _finite("fugacity coefficients", phi, T, P, per_species=True)
 
 
 def residual_enthalpy(T, P, y, species, phase="vapour", kij=None, h2_quantum=True):
@@ -359,8 +425,9 @@ def residual_enthalpy(T, P, y, species, phase="vapour", kij=None, h2_quantum=Tru
         Residual enthalpy [J/mol].
     """
     sset, T, P, y, k = _check_inputs(T, P, y, species, phase, kij)
-    _, _, h, _ = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
-    return _scalar(h)
+    with np.errstate(all="ignore"):
+        _, _, h, _ = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
+    return _scalar(_finite("residual enthalpy", h, T, P))
 
 
 def residual_entropy(T, P, y, species, phase="vapour", kij=None, h2_quantum=True):
@@ -377,5 +444,6 @@ def residual_entropy(T, P, y, species, phase="vapour", kij=None, h2_quantum=True
         Residual entropy [J/(mol K)].
     """
     sset, T, P, y, k = _check_inputs(T, P, y, species, phase, kij)
-    _, _, _, s = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
-    return _scalar(s)
+    with np.errstate(all="ignore"):
+        _, _, _, s = pr_state(T, P, y, sset, k, phase, h2_quantum, want_enthalpy=True)
+    return _scalar(_finite("residual entropy", s, T, P))

@@ -231,8 +231,25 @@ def species_set(names) -> SpeciesSet:
     Raises
     ------
     InputError
-        For an unknown species (the message lists the known ones) or a repeated name.
+        For an unknown species (the message lists the known ones), a repeated name, an empty
+        list or anything that is not a name or a sequence of names.
     """
     if isinstance(names, str):
         names = (names,)
-    return _species_set(tuple(names))
+    elif isinstance(names, SpeciesSet):
+        return names
+    try:
+        names = tuple(names)
+    except TypeError:
+        raise InputError(
+            f"species must be a species name or a sequence of names, got {names!r}"
+        ) from None
+    if not names:
+        raise InputError("species must name at least one species, got an empty sequence")
+    bad = [n for n in names if not isinstance(n, str)]
+    if bad:
+        raise InputError(
+            f"unknown species {', '.join(map(repr, bad))} (species are given by name); known "
+            f"species: {', '.join(_table().index)}"
+        )
+    return _species_set(names)
