@@ -35,7 +35,7 @@ DEMO = (
 QUICK = {
     "ammonia": {"map_points": 5},
     "acid": {"map_points": 5},
-    "uncertainty": {"n_monte_carlo": 24, "n_sobol": 4, "n_voi": 16, "economics_only": True},
+    "uncertainty": {"n_monte_carlo": 16, "n_sobol": 4, "n_voi": 12, "economics_only": True},
 }
 
 
