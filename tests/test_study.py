@@ -156,7 +156,7 @@ def test_ammonia_demo_optimum_is_interior(demo_optimum):
     # bar bounds) with the first-bed inlet near 380 degC (the lower end of the common range; the
     # later beds run hotter, at the 440 degC inter-bed bound: a cool first inlet leaves room for
     # its adiabatic rise). The maximum-yield point is elsewhere (most catalyst, the yield corner).
-    s, best = demo_optimum
+    _, best = demo_optimum
     d = best.decisions
     assert best.feasible
     assert 120e5 < d["pressure"] < 280e5

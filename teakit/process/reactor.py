@@ -22,8 +22,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from teakit.errors import InputError
-from teakit.process.bed import run_bed
+from teakit.process.bed import MAX_VOLUME, run_bed
 from teakit.process.streams import Stream, enthalpy_flow, mix
+from teakit.validation import check_positive, check_range
 
 __all__ = ["ConverterResult", "multibed"]
 
@@ -83,14 +84,25 @@ def multibed(rate, feed: Stream, volumes, inlet_temperatures, *, nu, cooling: st
     """
     if cooling not in ("exchanger", "quench"):
         raise InputError(f"cooling must be 'exchanger' or 'quench', got {cooling!r}")
+    if not isinstance(feed, Stream):
+        raise InputError(f"feed must be a Stream, got {type(feed).__name__}")
+    if isinstance(max_iter, bool) or not isinstance(max_iter, int | np.integer) or not 1 <= max_iter <= 1000:
+        raise InputError(f"max_iter must be a whole number from 1 to 1000, got {max_iter!r}")
     B = len(feed)
-    V = np.broadcast_to(np.asarray(volumes, float), (B, np.shape(volumes)[-1]))
-    Tin = np.broadcast_to(np.asarray(inlet_temperatures, float), V.shape)
+    V0 = check_range("volumes", volumes, 0.0, MAX_VOLUME, "m3")
+    T0 = check_positive("inlet_temperatures", inlet_temperatures, "K")
+    if V0.ndim not in (1, 2) or V0.shape[-1] < 1 or T0.shape != V0.shape:
+        raise InputError(f"volumes and inlet_temperatures need one entry per bed, shape (n_beds,) or (B, n_beds), "
+                         f"got {V0.shape} and {T0.shape}")
+    try:
+        V = np.broadcast_to(V0, (B, V0.shape[-1]))
+        Tin = np.broadcast_to(T0, V.shape)
+    except ValueError:
+        raise InputError(f"volumes and inlet_temperatures must have the batch size {B} in front, got {V0.shape}") from None
     nb = V.shape[1]
-    if nb < 1 or Tin.shape != V.shape:
-        raise InputError("volumes and inlet_temperatures need one entry per bed")
+    feed.sset.check_T(Tin, "inlet_temperatures")
     sset = feed.sset
-    if cooling == "exchanger":
+    if cooling == "exchanger" or nb == 1:  # one bed: no mixing point, nothing to quench
         s = feed.at(T=Tin[:, 0])
         beds, duty = [], []
         for j in range(nb):

@@ -23,11 +23,14 @@ Flowsheet (one loop; flows at the plant's capacity):
    ammonia (product, with the gases dissolved in it lost at let-down) from the vapour.
 5. A fraction of the vapour is purged (inerts leave; H2 and NH3 go with them), the rest recycles.
 
-The loop is solved by Wegstein iteration (:mod:`teakit.process.loop`) on the recycle flows and
+The loop is solved by Broyden iteration (:mod:`teakit.process.loop`) on the recycle flows and
 the make-up flow together: the make-up flow is set so that the liquid product equals the plant
 capacity, so every feasible member produces exactly at capacity. Members where nothing condenses
-at the separator, or the loop cannot reach capacity, are reported with a status reason and zero
-production, never NaN.
+at the separator, or the loop cannot reach capacity (its production peaks below it, or the
+recycle runs away), are reported with a status reason and zero production, never NaN; the
+statuses are listed in :data:`STATUSES`. The starting Jacobian of the tear comes from a coarser
+bed integration; the separator flash of each member starts from its K-values of the previous
+iteration.
 """
 
 from __future__ import annotations
@@ -48,7 +51,7 @@ from teakit.process.result import ProcessResult
 from teakit.process.streams import Stream, enthalpy_flow, mix, temperature_from_enthalpy
 from teakit.thermo.species import species_set
 
-__all__ = ["DECISIONS", "PHYSICS", "SPECIES", "ammonia_loop"]
+__all__ = ["DECISIONS", "FLASH_FAILED", "NOT_CONVERGED", "PHYSICS", "SPECIES", "STATUSES", "ammonia_loop"]
 
 SPECIES = ("N2", "H2", "NH3", "Ar", "CH4")
 NU = np.array([-1.0, -3.0, 2.0, 0.0, 0.0])  # N2 + 3 H2 = 2 NH3
@@ -97,7 +100,36 @@ PHYSICS: dict[str, Spec] = {
 N_BEDS = 3
 #: Recycle over make-up above which a loop is called unable to reach capacity [-].
 MAX_RECYCLE_RATIO = 30.0
+#: Consecutive iterations of a growing recycle after which a loop is called unable to reach
+#: capacity [-].
+GROWING_ITERATIONS = 12
+#: Iterations without halving the residual after which the loop solver stops a member [-].
+STALL_ITERATIONS = 10
+#: A member whose production stays short of capacity, with the loop asking for more make-up or
+#: more recycle, for this many iterations in which neither its production closed PLATEAU_GAIN of its
+#: best gap to capacity nor the loop residual halved is called unable to reach capacity: the
+#: converter's output peaks below it [-].
+PLATEAU_ITERATIONS = 5
+PLATEAU_GAIN = 0.02
 SHELL_MATERIAL = "SA-387 Gr 22 Cl 2"
+
+NO_LIQUID = "separator above the dew point: nothing condenses"
+RUNAWAY = f"capacity not reached: recycle above {MAX_RECYCLE_RATIO:g} x make-up"
+GROWING = "capacity not reached: recycle keeps growing"
+PEAKED = "capacity not reached: production peaks below capacity"
+#: The one status that is not a physical reason: the solver stopped without an answer.
+NOT_CONVERGED = "recycle loop did not converge"
+#: Likewise: the Peng-Robinson flash of the converter effluent found no answer.
+FLASH_FAILED = "separator flash did not converge"
+#: Every status a member can get: "ok" or a reason (then zero production, other figures finite).
+#: "capacity not reached": the loop found no steady state at capacity within the iteration
+#: bound, because the recycle ran past MAX_RECYCLE_RATIO x make-up, kept growing for
+#: GROWING_ITERATIONS iterations, or the production stalled below capacity while the loop asked
+#: for more gas (PLATEAU_ITERATIONS). Checked over the demo study's whole decision space
+#: (tests/test_convergence_grid.py): solving those points again with 400 iterations and no such
+#: stops, about 97 % still find no steady state; the rest settle at recycle ratios of about 18 or
+#: more, beyond practical loops (3-6, common practice).
+STATUSES = ("ok", NO_LIQUID, RUNAWAY, GROWING, PEAKED, NOT_CONVERGED, FLASH_FAILED)
 
 
 def _rate():
@@ -113,20 +145,72 @@ def _kij(d):
     return kij_matrix(SPECIES, {("NH3", "H2"): d["kij_NH3_H2"], ("NH3", "N2"): d["kij_NH3_N2"]})
 
 
-def _flash(T, P, z, kij):
-    from teakit.thermo.flash import flash_tp
+def _flash(T, P, z, kij, K=None, tol=1e-13):
+    """Separator flash of a batch; members with a finite ``K`` (B, ns) start from it (a few
+    substitution steps instead of a dozen; the same converged answer), the others from Wilson.
 
-    return flash_tp(T, P, z, SPECIES, kij=kij, tol=1e-13)
+    Members whose flash does not converge (e.g. a stability test that stalls just above this
+    tight tolerance) are flashed again from Wilson at the flash's default tolerance; members that
+    fail again get a one-phase vapour result (beta = 1, x = y = z) and are flagged.
+
+    Returns
+    -------
+    FlashResult, ndarray of bool (B,)
+        The flash and the members whose flash failed.
+    """
+    from teakit.errors import ConvergenceError
+    from teakit.thermo.flash import TOL, FlashResult, flash_tp
+
+    B = len(T)
+    has = np.zeros(B, dtype=bool) if K is None else np.isfinite(K).all(axis=-1)
+    failed = np.zeros(B, dtype=bool)
+    parts = []
+    todo = [(g, tol, has[g[0]]) for g in (np.flatnonzero(has), np.flatnonzero(~has)) if g.size]
+    while todo:
+        g, tol_g, warm = todo.pop()
+        try:
+            parts.append((g, flash_tp(T[g], P[g], z[g], SPECIES, kij=kij, tol=tol_g, K_init=K[g] if warm else None)))
+        except ConvergenceError as exc:
+            bad = np.zeros(g.size, dtype=bool)
+            bad[exc.members] = True
+            if (~bad).any():
+                todo.append((g[~bad], tol_g, warm))
+            if warm or tol_g < TOL:
+                todo.append((g[bad], max(tol_g, TOL), False))
+            else:
+                failed[g[bad]] = True
+    if failed.any():
+        f = np.flatnonzero(failed)
+        zf = z[f]
+        parts.append((f, FlashResult(beta=np.ones(f.size), x=zf.copy(), y=zf.copy(), K=np.ones_like(zf),
+                                     phases=np.ones(f.size, dtype=int), iterations=np.zeros(f.size, dtype=int))))
+    fl = parts[0][1] if len(parts) == 1 else _merge_flash(parts, B)
+    return fl, failed
 
 
-def _flash_enthalpy(T, P, n, kij):
-    """Real-fluid enthalpy flow [W] of flows n (B, ns) at T, P after a flash, and the flash."""
-    from teakit.thermo.flash import flash_enthalpy, flash_tp
+def _merge_flash(parts, B):
+    """One FlashResult from flashes of disjoint members ``[(members, result), ...]``."""
+    from teakit.thermo.flash import FlashResult
+
+    out = {}
+    for name in ("beta", "x", "y", "K", "phases", "iterations"):
+        first = np.asarray(getattr(parts[0][1], name))
+        arr = np.empty((B,) + first.shape[1:], dtype=first.dtype)
+        for sel, fl in parts:
+            arr[sel] = getattr(fl, name)
+        out[name] = arr
+    return FlashResult(**out)
+
+
+def _flash_enthalpy(T, P, n, kij, K=None):
+    """Real-fluid enthalpy flow [W] of flows n (B, ns) at T, P after a flash, the flash (started
+    from ``K`` where finite) and the members whose flash failed (see :func:`_flash`)."""
+    from teakit.thermo.flash import TOL, flash_enthalpy
 
     tot = n.sum(axis=-1)
     z = n / tot[:, None]
-    fl = flash_tp(T, P, z, SPECIES, kij=kij)
-    return tot * flash_enthalpy(T, P, fl, SPECIES, kij=kij).h, fl
+    fl, failed = _flash(T, P, z, kij, K, tol=TOL)
+    return tot * flash_enthalpy(T, P, fl, SPECIES, kij=kij).h, fl, failed
 
 
 def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = None, *,
@@ -169,6 +253,8 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         For unknown names or values outside their ranges (the message names them).
     """
     d, B = resolve_case(decisions, physics, DECISIONS, PHYSICS)
+    if warm is not None:
+        warm = _check_warm(warm, B)
     frac2_total = d["bed1_fraction"] + d["bed2_fraction"]
     if np.any(frac2_total >= 0.95):
         raise InputError("bed1_fraction + bed2_fraction must leave at least 5 % of the catalyst for bed 3")
@@ -184,6 +270,28 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
     if len(parts) == 1:
         return parts[0][1]
     return _merge(parts, B)
+
+
+def _check_warm(warm, B):
+    """``warm`` as float arrays of the shapes that ``result.state`` has, or InputError."""
+    if not isinstance(warm, Mapping):
+        raise InputError(f"warm must be the state mapping of an earlier result (result.state), got {type(warm).__name__}")
+    shapes = {"tear": (B, 6), "H": (B, 6, 6), "scale": (B, 6)}
+    missing = [k for k in shapes if k not in warm]
+    if missing:
+        raise InputError(f"warm must hold {', '.join(shapes)} (result.state of an earlier call); missing {', '.join(missing)}")
+    out = {}
+    for k, shape in shapes.items():
+        try:
+            a = np.asarray(warm[k], dtype=float)
+        except (TypeError, ValueError):
+            raise InputError(f"warm[{k!r}] must be an array of numbers") from None
+        if a.shape != shape:
+            raise InputError(f"warm[{k!r}] must have shape {shape} for a batch of {B}, got {a.shape}")
+        out[k] = a
+    if not np.all(np.isfinite(out["scale"]) & (out["scale"] > 0)):
+        raise InputError("warm['scale'] must be finite and > 0")
+    return out
 
 
 def _merge(parts, B):
@@ -237,6 +345,7 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
 
     full_steps = steps
     cache: dict[str, np.ndarray] = {}
+    K_sep = np.full((B, len(SPECIES)), np.nan)  # K of each member's last two-phase separator flash
 
     def remember(idx, **arrays):
         """Keep what an evaluation at full accuracy computed, per member (for the final figures)."""
@@ -245,14 +354,24 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
                 cache[k] = np.zeros((B,) + v.shape[1:])
             cache[k][idx] = v
 
-    def loop_map(x, idx, steps=steps):
+    def separator_flash(T, P_, z, idx, unique):
+        """The separator flash, started from each member's K of its previous flash where that
+        was two-phase; a call that covers each member once keeps its K for the next."""
+        fl, failed = _flash(T, P_, z, kij, K_sep[idx])
+        if unique:
+            two = (fl.beta > 0.0) & (fl.beta < 1.0)
+            K_sep[idx] = np.where(two[:, None], fl.K, np.nan)
+        return fl, failed
+
+    def loop_map(x, idx, steps=steps, jacobian=False):
         R = x[:, :5]
         F = x[:, 5]
+        unique = idx.size == np.unique(idx).size
         recycle = Stream(SPECIES, R, T_sep[idx], P_sep[idx])
         mu = makeup_stream(F, idx)
         feed = mix(recycle.at(P=P[idx]), mu, P=P[idx])  # circulator temperature rise is small
         eff, bd, qi = converter(feed, idx, steps)
-        if steps == full_steps and idx.size == np.unique(idx).size:
+        if not jacobian and steps == full_steps and unique:
             remember(idx, feed_n=feed.n, feed_T=feed.T, eff_n=eff.n, eff_T=eff.T, q_inter=qi,
                      bed_T=np.stack([b.profile_T for b in bd], axis=1),
                      bed_xi=np.stack([b.profile_xi for b in bd], axis=1),
@@ -260,7 +379,7 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
                      bed_Tmax=np.stack([b.T_max for b in bd], axis=1),
                      bed_n_out=np.stack([b.outlet.n for b in bd], axis=1))
         tot = eff.total
-        fl = _flash(T_sep[idx], P_sep[idx], eff.n / tot[:, None], kij)
+        fl, flash_failed = separator_flash(T_sep[idx], P_sep[idx], eff.n / tot[:, None], idx, unique)
         vap = fl.beta * tot
         liq = (1.0 - fl.beta) * tot
         product = liq * fl.x[:, 2]
@@ -271,15 +390,35 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
         dissolved = liq[:, None] * fl.x
         n_loss = 2.0 * (purge[:, 0] + dissolved[:, 0]) + purge[:, 2]
         F_new = (cap[idx] + n_loss) / (2.0 * y_mu[idx, 0])
+        gx = np.concatenate([R_new, F_new[:, None]], axis=-1)
+        if jacobian:
+            # A coarse integration far off (a very long bed in few steps) may give a state the
+            # flash cannot settle: no difference Jacobian for that member (the solver starts it
+            # from -I instead).
+            return np.where(flash_failed[:, None], np.nan, gx), None
+        gx = np.where(flash_failed[:, None], x, gx)
+        failed_flash[idx] = flash_failed
         no_liquid = fl.beta >= 1.0
         dry[idx] = np.where(no_liquid, dry[idx] + 1, 0)
         runaway = R_new.sum(axis=-1) > MAX_RECYCLE_RATIO * F_new
         growing = R_new.sum(axis=-1) > R.sum(axis=-1) * (1.0 + 1e-3)
         grow[idx] = np.where(growing, grow[idx] + 1, 0)
-        halt = (dry[idx] >= 3) | runaway | (grow[idx] >= 12)
+        # Production peaking below capacity: short of it while the loop asks for more make-up or
+        # recycle, for PLATEAU_ITERATIONS evaluations in which neither the production
+        # closed PLATEAU_GAIN of its best gap to capacity nor the loop residual halved (a member
+        # on its way to a steady state does one or the other at nearly every step).
+        err = np.max(np.abs(gx - x), axis=-1) / np.maximum(np.max(np.abs(gx), axis=-1), 1e-300)
+        short = (product < cap[idx]) & ((F_new > F) | (R_new.sum(axis=-1) > R.sum(axis=-1)))
+        gap = cap[idx] - best_product[idx]
+        better = (product > best_product[idx] + PLATEAU_GAIN * gap) | (err < 0.5 * best_err[idx])
+        best_product[idx] = np.maximum(best_product[idx], product)
+        best_err[idx] = np.where(err < 0.5 * best_err[idx], err, best_err[idx])
+        flat[idx] = np.where(short & ~better, flat[idx] + 1, 0)
+        peaked = flat[idx] >= PLATEAU_ITERATIONS
+        halt = (dry[idx] >= 3) | runaway | (grow[idx] >= GROWING_ITERATIONS) | peaked | flash_failed
         info = {"product": product, "beta": fl.beta, "halt": halt, "runaway": runaway,
-                "growing": grow[idx] >= 12}
-        return np.concatenate([R_new, F_new[:, None]], axis=-1), info
+                "growing": grow[idx] >= GROWING_ITERATIONS, "peaked": peaked}
+        return gx, info
 
     # Starting recycle: about three times the make-up of 1:3 N2/H2, 3 % NH3, and the inerts at
     # the level the purge would hold them to.
@@ -289,7 +428,16 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
     x0 = np.concatenate([R0, F0[:, None]], axis=-1)
     dry = np.zeros(B, dtype=int)
     grow = np.zeros(B, dtype=int)
+    flat = np.zeros(B, dtype=int)
+    best_product = np.zeros(B)
+    best_err = np.full(B, np.inf)
+    failed_flash = np.zeros(B, dtype=bool)
     # Quasi-Newton on the tear; its starting Jacobian comes from a coarser bed integration.
+    # An inert absent from the make-up stays absent: its column needs no difference (its
+    # recycle and the rest of the tear do not interact).
+    fd_columns = np.ones((B, 6), dtype=bool)
+    fd_columns[:, 3] = d["makeup_argon"] > 0
+    fd_columns[:, 4] = d["makeup_methane"] > 0
     keep: dict = {}
     if warm is not None:
         good = np.all(np.isfinite(warm["tear"]), axis=-1) & (warm["tear"][:, 5] > 0)
@@ -300,22 +448,25 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
         s_new = np.max(np.abs(x0), axis=-1, keepdims=True) * np.ones_like(x0)
         H0 = H0 * (s_old[:, :, None] / s_new[:, :, None]) * (s_new[:, None, :] / s_old[:, None, :])
         x, info, conv, iters = broyden(loop_map, x0, tol=tol, max_iter=max_iter, raise_on_failure=False,
-                                       H0=H0, keep=keep, stall=10)
+                                       H0=H0, keep=keep, stall=STALL_ITERATIONS)
     else:
         x, info, conv, iters = broyden(loop_map, x0, tol=tol, max_iter=max_iter, raise_on_failure=False,
-                                       g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(6, steps // 4)),
-                                       keep=keep, stall=10)
+                                       g_jacobian=lambda x, idx: loop_map(x, idx, steps=max(6, steps // 4), jacobian=True),
+                                       fd_columns=fd_columns, keep=keep, stall=STALL_ITERATIONS)
     status = np.full(B, "ok", dtype=object)
     no_liquid = info.get("beta", np.ones(B)) >= 1.0
-    status[no_liquid] = "separator above the dew point: nothing condenses"
+    status[no_liquid] = NO_LIQUID
     runaway = info.get("runaway", np.zeros(B, bool)).astype(bool) & ~no_liquid
-    status[runaway] = f"capacity not reached: recycle above {MAX_RECYCLE_RATIO:g} x make-up"
+    status[runaway] = RUNAWAY
     # Members still open at the iteration bound whose recycle was still growing have no steady
     # state at capacity either (the beds cannot convert the make-up); others are reported as
     # not converged.
     growing = info.get("growing", np.zeros(B, bool)).astype(bool)
-    status[~conv & ~no_liquid & ~runaway & growing] = "capacity not reached: recycle keeps growing"
-    status[~conv & ~no_liquid & ~runaway & ~growing] = "recycle loop did not converge"
+    peaked = info.get("peaked", np.zeros(B, bool)).astype(bool) & ~growing
+    open_ = ~conv & ~no_liquid & ~runaway
+    status[open_ & growing] = GROWING
+    status[open_ & peaked] = PEAKED
+    status[open_ & ~growing & ~peaked] = NOT_CONVERGED
     # Every figure from the last evaluation of each member (at keep["x_eval"]): the converter is
     # not run again.
     x = keep["x_eval"]
@@ -355,9 +506,10 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
     Q_steam_eff = np.maximum(H(eff) - H(eff.at(T=T_hg)) - np.maximum(Q_pre_high - q_inter.sum(axis=-1), 0.0), 0.0)
     # Cold end with real-fluid enthalpies (latent heat of the condensing ammonia).
     T_wc_out = np.minimum(T_cw, T2)
-    H_T2, _ = _flash_enthalpy(T2, P_sep, eff.n, kij)
-    H_cw, _ = _flash_enthalpy(T_wc_out, P_sep, eff.n, kij)
-    H_sep, fl = _flash_enthalpy(T_sep, P_sep, eff.n, kij)
+    H_T2, _, fail_T2 = _flash_enthalpy(T2, P_sep, eff.n, kij)
+    H_cw, _, fail_cw = _flash_enthalpy(T_wc_out, P_sep, eff.n, kij)
+    H_sep, fl, fail_sep = _flash_enthalpy(T_sep, P_sep, eff.n, kij, K_sep)
+    status[failed_flash | fail_T2 | fail_cw | fail_sep] = FLASH_FAILED
     Q_cw = np.maximum(H_T2 - H_cw, 0.0)
     Q_ref = np.maximum(H_cw - H_sep, 0.0)
     T_evap = T_sep - d["evaporator_approach"]

@@ -92,7 +92,7 @@ from teakit.process.streams import Stream, enthalpy_flow, heat_capacity_flow
 from teakit.thermo import ideal_gas
 from teakit.thermo.species import R, species_set
 
-__all__ = ["DECISIONS", "NU", "PHYSICS", "SPECIES", "equilibrium_line", "so2_converter"]
+__all__ = ["DECISIONS", "NU", "PHYSICS", "SPECIES", "STATUSES", "equilibrium_line", "so2_converter"]
 
 SPECIES = ("SO2", "O2", "SO3", "N2")
 NU = np.array([-1.0, -0.5, 1.0, 0.0])  # SO2 + 1/2 O2 = SO3
@@ -163,6 +163,12 @@ PHYSICS: dict[str, Spec] = {
     "absorber_velocity": Spec("m/s", 0.3, 5.0, 1.5, "superficial gas velocity in the absorbers (invented)"),
     "absorber_height": Spec("m", 2.0, 40.0, 10.0, "absorber tower height (invented)"),
 }
+
+COLLAPSED = "a bed's Ergun pressure drop takes most of its inlet pressure: shallower beds or lower velocity"
+BELOW_AMBIENT = "gas leaves the final absorber below ambient pressure: raise the pressure"
+LOW_CONVERSION = "the converter converts under 1 % of the SO2 fed: capacity cannot be reached"
+#: Every status a member can get: "ok" or a reason (then zero production, other figures finite).
+STATUSES = ("ok", COLLAPSED, BELOW_AMBIENT, LOW_CONVERSION)
 
 # Collina rate window of teakit's kinetics: 380-650 degC [K].
 _T_WINDOW = (653.15, 923.15)
@@ -370,9 +376,9 @@ def _solve(d, B, ip, steps):
 
     status = np.full(B, "ok", dtype=object)
     low_conv = p < 0.01
-    status[collapsed] = "a bed's Ergun pressure drop takes most of its inlet pressure: shallower beds or lower velocity"
-    status[~collapsed & (P_stack < P_amb)] = "gas leaves the final absorber below ambient pressure: raise the pressure"
-    status[low_conv] = "the converter converts under 1 % of the SO2 fed: capacity cannot be reached"
+    status[collapsed] = COLLAPSED
+    status[~collapsed & (P_stack < P_amb)] = BELOW_AMBIENT
+    status[low_conv] = LOW_CONVERSION
     ok = status == "ok"
     f = np.where(low_conv, 1.0, 1.0 / np.maximum(p, 1e-300))  # scale from the basis to capacity
 
