@@ -7,12 +7,19 @@ maps the objective over two decisions.
 
 The optimiser is global enough for these smooth, low-dimensional problems: a scrambled Sobol
 sample of the decision box (Sobol, USSR Comput. Math. Math. Phys. 7, 86, 1967; scipy.stats.qmc)
-evaluated in one batch, then a batched compass search with Hooke-Jeeves pattern moves from the
-best few distinct points (Hooke & Jeeves, J. ACM 8, 212, 1961; Kolda, Lewis & Torczon, SIAM
-Rev. 45, 385, 2003), all starts and all parameter sets
-stepping together in one batch per iteration, with step halving to a tolerance. Constraints are
-handled by a penalty on their relative violation; members the process reports infeasible never
-win.
+evaluated in one batch, then a batched compass search with Hooke-Jeeves pattern moves and a
+Newton step through the last stencil, expanding on sufficient increase and contracting on
+failure (Hooke & Jeeves, J. ACM 8, 212, 1961; Kolda, Lewis & Torczon, SIAM Rev. 45, 385, 2003),
+from the best few distinct points; all starts, targets and parameter sets step together in one
+batch per iteration, and the tracks of sets with equal physics finally seed each other. Process
+evaluations are memoised per physics set on a lattice of the unit decision box and kept between
+calls, and prices that enter the objective linearly are applied to stored physics exactly, so
+re-optimising for many price sets costs little physics. Points violating a constraint rank below
+every feasible point, by total relative violation; members the process reports infeasible never
+win. Every reported figure is a full-accuracy evaluation of the decisions found.
+
+Preliminary estimates only: the applicable pressure-vessel code, local regulations and licensed
+engineers govern design.
 """
 
 from __future__ import annotations
