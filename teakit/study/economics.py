@@ -43,7 +43,7 @@ from teakit.costing import (
     operating_labour_cost,
     raw_material_cost,
 )
-from teakit.errors import RangeWarning
+from teakit.errors import InputError, RangeWarning
 from teakit.finance import cash_flows, metrics
 from teakit.process.cases.common import Spec, resolve
 
@@ -108,6 +108,14 @@ def _capacity_key(kind: str) -> str:
     raise KeyError(f"no capacity rule for equipment kind {kind!r}")
 
 
+def _one_life(plant_life) -> int:
+    """The plant life of a call: one whole number of years for the whole batch."""
+    lives = np.unique(plant_life)
+    if lives.size != 1 or lives[0] != round(lives[0]):
+        raise InputError(f"plant_life must be one whole number of years per call, got {lives.tolist()}")
+    return int(lives[0])
+
+
 def plant_economics(process, economics: Mapping | None = None, *, with_metrics: bool = True) -> dict:
     """Capital, operating cost, revenue, cash flows and metrics of a batch of process results.
 
@@ -132,11 +140,11 @@ def plant_economics(process, economics: Mapping | None = None, *, with_metrics: 
     B = len(process)
     e = {k: np.broadcast_to(v, (B,)) if v.shape == (1,) or B_e == B else v for k, v in econ.items()}
     if any(v.shape != (B,) for v in e.values()):
-        raise ValueError(f"economic parameters have {B_e} members, the process {B}")
+        raise InputError(f"economic parameters have {B_e} members, the process {B}: they must match or be scalars")
     vals = process.values
     years = np.unique(e["cost_year"])
     if years.size != 1:
-        raise ValueError("one cost year per call")
+        raise InputError(f"cost_year must be one year per call, got {years.tolist()}")
     year = int(years[0])
     out: dict[str, np.ndarray] = {}
     cbm, cbm0 = [], []
@@ -199,7 +207,7 @@ def plant_economics(process, economics: Mapping | None = None, *, with_metrics: 
     steam = heat_cost(vals.get("recovered_heat", np.zeros(B)), e["steam_credit"], 1.0, hours) * ok
     revenue = sales + steam
     cf = cash_flows(FCI, revenue, variable, discount_rate=e["discount_rate"], tax_rate=e["tax_rate"],
-                    plant_life=int(np.unique(e["plant_life"])[0]), construction_schedule=CONSTRUCTION,
+                    plant_life=_one_life(e["plant_life"]), construction_schedule=CONSTRUCTION,
                     working_capital=WC, fixed_operating_cost=fixed, ramp_up=RAMP_UP)
     out.update({
         "bare_module_cost": C_BM.sum(axis=-1) * ok,

@@ -117,6 +117,25 @@ def _number(value, unit: str, what: str) -> float:
     return v
 
 
+def _value_array(value, unit: str, what: str) -> np.ndarray:
+    """A 1-d array of finite SI values from a number, a string with units or a sequence of either."""
+    try:
+        if isinstance(value, str) or (isinstance(value, list | tuple) and value and all(isinstance(x, str) for x in value)):
+            v = to_si(value, unit, what) if unit not in ("-", "") else np.asarray(value, dtype=float)
+        elif isinstance(value, bool):
+            raise TypeError
+        else:
+            v = value
+        a = np.atleast_1d(np.asarray(v, dtype=float))
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number, a string with units or a 1-d sequence of them, got {value!r}") from None
+    if a.ndim != 1 or a.size == 0:
+        raise InputError(f"{what} must be a scalar or a non-empty 1-d array, got shape {a.shape}")
+    if not np.isfinite(a).all():
+        raise InputError(f"{what} must be finite, got {value!r}")
+    return a
+
+
 def _take(proc, idx):
     """Members ``idx`` of a ProcessResult (repeats allowed)."""
     from teakit.process.result import ProcessResult
@@ -369,17 +388,18 @@ class Study:
 
     # -- evaluation --------------------------------------------------------------------------
     def _arrays(self, decisions, parameters):
+        for name, m in (("decisions", decisions), ("parameters", parameters)):
+            if m is not None and not isinstance(m, Mapping):
+                raise InputError(f"{name} must be a mapping of name -> value, got {type(m).__name__}")
         dec = {}
         for k, d in self._decisions.items():
-            v = (decisions or {}).get(k, d.default)
-            dec[k] = np.atleast_1d(np.asarray(to_si(v, d.unit, k) if d.unit != "-" else v, dtype=float))
+            dec[k] = _value_array((decisions or {}).get(k, d.default), d.unit, f"decision {k!r}")
         unknown = set(decisions or {}) - set(self._decisions)
         if unknown:
             raise InputError(f"unknown decision(s) {sorted(unknown)}; decisions: {', '.join(self._decisions)}")
         par = {}
         for k, p in self._parameters.items():
-            v = (parameters or {}).get(k, p.nominal)
-            par[k] = np.atleast_1d(np.asarray(to_si(v, p.unit, k) if p.unit not in ("-", "") else v, dtype=float))
+            par[k] = _value_array((parameters or {}).get(k, p.nominal), p.unit, f"parameter {k!r}")
         unknown = set(parameters or {}) - set(self._parameters)
         if unknown:
             raise InputError(f"unknown parameter(s) {sorted(unknown)}; parameters: {', '.join(self._parameters)}")
