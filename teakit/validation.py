@@ -101,6 +101,33 @@ def check_fraction(name: str, value, open_ends: bool = False) -> np.ndarray:
     return check_range(name, value, 0.0, 1.0, inclusive=inc)
 
 
+def check_composition(name: str, y, names, T: np.ndarray, P: np.ndarray, what: str = "mole fractions"):
+    """Mole fractions ``y`` (last axis = the species ``names``) checked and normalised, and the
+    broadcast shape of ``T``, ``P`` and ``y`` without its species axis.
+
+    Raises InputError for non-finite values, a last axis of the wrong length, negative entries,
+    an all-zero composition, or shapes that do not broadcast.
+    """
+    y = check_finite(name, y)
+    n = len(names)
+    if y.ndim == 0 or y.shape[-1] != n:
+        raise InputError(f"{name} must have a last axis of length {n} ({', '.join(names)}), got shape {y.shape}")
+    if (y < 0).any():
+        raise InputError(f"{name} ({what}) must be >= 0, got min {y.min():g}")
+    tot = y.sum(axis=-1, keepdims=True)
+    if (tot <= 0).any():
+        raise InputError(f"{name} ({what}) must not all be zero")
+    y = y / tot
+    try:
+        shape = np.broadcast_shapes(np.shape(T), np.shape(P), y.shape[:-1])
+    except ValueError:
+        raise InputError(
+            f"T {np.shape(T)}, P {np.shape(P)} and {name} {y.shape[:-1]} (without its species axis) "
+            "do not broadcast"
+        ) from None
+    return y, shape
+
+
 def broadcast_arrays(**named) -> list[np.ndarray]:
     """Broadcast named arguments against each other as float arrays.
 

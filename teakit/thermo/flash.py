@@ -101,7 +101,12 @@ from teakit.errors import ConvergenceError, InputError
 from teakit.thermo.ideal_gas import h_RT
 from teakit.thermo.peng_robinson import kij_array, pr_mixture, pure_parameters
 from teakit.thermo.species import R, SpeciesSet, species_set
-from teakit.validation import check_finite, check_positive, check_range, check_scalar
+from teakit.validation import (
+    check_composition,
+    check_positive,
+    check_range,
+    check_scalar,
+)
 
 __all__ = [
     "FlashEnthalpy",
@@ -215,25 +220,7 @@ def _check_state(T, P, z, species, kij):
     T = check_range("T", T, T_MIN, T_MAX, "K")
     P = check_positive("P", P, "Pa")
     P = check_range("P", P, P_MIN, P_MAX, "Pa")
-    z = check_finite("z", z)
-    if z.ndim == 0 or z.shape[-1] != sset.n:
-        raise InputError(
-            f"z must have a last axis of length {sset.n} ({', '.join(sset.names)}), "
-            f"got shape {z.shape}"
-        )
-    if (z < 0).any():
-        raise InputError(f"z (feed mole fractions) must be >= 0, got min {z.min():g}")
-    tot = z.sum(axis=-1, keepdims=True)
-    if (tot <= 0).any():
-        raise InputError("z (feed mole fractions) must not all be zero")
-    z = z / tot
-    try:
-        shape = np.broadcast_shapes(T.shape, P.shape, z.shape[:-1])
-    except ValueError:
-        raise InputError(
-            f"T {T.shape}, P {P.shape} and z {z.shape[:-1]} (without its species axis) "
-            "do not broadcast"
-        ) from None
+    z, shape = check_composition("z", z, sset.names, T, P, "feed mole fractions")
     k = _kij(sset, kij)
     T = np.broadcast_to(T, shape)
     P = np.broadcast_to(P, shape)

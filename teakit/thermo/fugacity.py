@@ -24,7 +24,7 @@ import numpy as np
 from teakit.errors import InputError, OutOfRangeError
 from teakit.thermo.peng_robinson import kij_array, pr_mixture, pure_parameters
 from teakit.thermo.species import SpeciesSet, species_set
-from teakit.validation import check_finite, check_positive
+from teakit.validation import check_composition, check_positive
 
 __all__ = ["MODELS", "FugacityModel", "dyson_simon_phi", "fugacity_model"]
 
@@ -106,26 +106,8 @@ class FugacityModel:
         """
         T = check_positive("T", T, "K")
         P = check_positive("P", P, "Pa")
-        y = check_finite("y", y)
         n = self.sset.n
-        if y.shape[-1:] != (n,):
-            raise InputError(
-                f"y must have a last axis of length {n} ({', '.join(self.sset.names)}), "
-                f"got shape {y.shape}"
-            )
-        if (y < 0).any():
-            raise InputError("y (mole fractions) must be >= 0")
-        tot = y.sum(axis=-1, keepdims=True)
-        if (tot <= 0).any():
-            raise InputError("y (mole fractions) must not all be zero")
-        y = y / tot
-        try:
-            shape = np.broadcast_shapes(T.shape, P.shape, y.shape[:-1])
-        except ValueError:
-            raise InputError(
-                f"T {T.shape}, P {P.shape} and y {y.shape[:-1]} (without its species axis) "
-                "do not broadcast"
-            ) from None
+        y, shape = check_composition("y", y, self.sset.names, T, P)
         Tf = np.broadcast_to(T, shape).reshape(-1)
         Pf = np.broadcast_to(P, shape).reshape(-1)
         yb = np.broadcast_to(y, shape + (n,)).reshape(-1, n)

@@ -36,7 +36,7 @@ import numpy as np
 from teakit.data import load_table
 from teakit.errors import InputError, OutOfRangeError
 from teakit.thermo.species import R, SpeciesSet, species_set
-from teakit.validation import check_finite, check_positive
+from teakit.validation import check_composition, check_finite, check_positive
 
 __all__ = [
     "compressibility",
@@ -308,26 +308,8 @@ def _check_inputs(T, P, y, species, phase, kij):
         raise InputError(f"phase must be one of {', '.join(PHASES)}, got {phase!r}")
     T = check_positive("T", T, "K")
     P = check_positive("P", P, "Pa")
-    y = check_finite("y", y)
-    if y.shape[-1:] != (sset.n,):
-        raise InputError(
-            f"y must have a last axis of length {sset.n} ({', '.join(sset.names)}), "
-            f"got shape {y.shape}"
-        )
-    if (y < 0).any():
-        raise InputError("y (mole fractions) must be >= 0")
-    tot = y.sum(axis=-1, keepdims=True)
-    if (tot <= 0).any():
-        raise InputError("y (mole fractions) must not all be zero")
-    y = y / tot
+    y, _ = check_composition("y", y, sset.names, T, P)
     k = kij_array(sset, kij)
-    try:
-        np.broadcast_shapes(T.shape, P.shape, y.shape[:-1])
-    except ValueError:
-        raise InputError(
-            f"T {T.shape}, P {P.shape} and y {y.shape[:-1]} (without its species axis) "
-            "do not broadcast"
-        ) from None
     return sset, T, P, y, k
 
 
