@@ -3,7 +3,8 @@
 :class:`Explorer` shows sliders for a study's main prices and cost factors and a case selector.
 To feel live, a change re-optimises over a stored neighbourhood of the first optimum: a
 two-level grid of operating points around it (each free decision at -h, 0, +h for h = 3 % and
-10 % of its range, all combinations) whose process figures are computed once per case; an update
+10 % of its range, all combinations; beyond 7 free decisions the axial points and 512 Sobol
+points of the box) whose process figures are computed once per case; an update
 only prices them again (economic parameters change, physics do not) and picks the best feasible
 point, in well under a second. The "refine" button runs the study's full re-optimisation from
 there (seconds) for a figure to quote. Sliders report their value on release
@@ -156,7 +157,14 @@ class Explorer:
         lo = np.array([study._decisions[k].low for k in free])
         hi = np.array([study._decisions[k].high for k in free])
         c = np.array([self.decisions[k] for k in free])
-        offs = np.stack(np.meshgrid(*[[-1.0, 0.0, 1.0]] * len(free), indexing="ij"), -1).reshape(-1, len(free))
+        d = len(free)
+        if 3**d <= 2187:  # up to 7 free decisions: every combination of -h, 0, +h
+            offs = np.stack(np.meshgrid(*[[-1.0, 0.0, 1.0]] * d, indexing="ij"), -1).reshape(-1, d)
+        else:  # more: the centre, the axial points and a scrambled Sobol set of the box
+            from scipy.stats import qmc
+
+            offs = np.vstack([np.zeros((1, d)), np.eye(d), -np.eye(d),
+                              qmc.Sobol(d, scramble=True, seed=0).random_base2(9) * 2.0 - 1.0])
         pts = np.vstack([c + h * offs * (hi - lo) for h in self.STEPS])
         pts = np.unique(np.clip(pts, lo, hi), axis=0)
         self._cands = {k: pts[:, i] for i, k in enumerate(free)} | {
