@@ -36,26 +36,21 @@ DEMO_STUDIES = {
     "Sulfuric acid, Redmesa (invented)": "acid_redmesa.toml",
 }
 
-#: Sliders per case: parameter -> (label, display unit, factor SI->display).
+#: Sliders every case shows: parameter -> (label, display unit, factor SI->display).
+_COMMON_SLIDERS = {
+    "electricity_price": ("electricity price", "USD/MWh", 1000.0),
+    "catalyst_price": ("catalyst price", "USD/kg", 1.0),
+    "steam_credit": ("steam credit", "USD/GJ", 1.0),
+    "discount_rate": ("discount rate", "%/yr", 100.0),
+    "contingency": ("contingency", "% of bare-module cost", 100.0),
+}
+
+#: Sliders per case: the product and its main feed first, then the common ones.
 SLIDERS = {
-    "ammonia_loop": {
-        "product_price": ("ammonia price", "USD/t", 1000.0),
-        "hydrogen_price": ("hydrogen price", "USD/kg", 1.0),
-        "electricity_price": ("electricity price", "USD/MWh", 1000.0),
-        "catalyst_price": ("catalyst price", "USD/kg", 1.0),
-        "steam_credit": ("steam credit", "USD/GJ", 1.0),
-        "discount_rate": ("discount rate", "%/yr", 100.0),
-        "contingency": ("contingency", "% of bare-module cost", 100.0),
-    },
-    "so2_converter": {
-        "product_price": ("acid price", "USD/t", 1000.0),
-        "sulfur_price": ("sulfur price", "USD/t", 1000.0),
-        "electricity_price": ("electricity price", "USD/MWh", 1000.0),
-        "catalyst_price": ("catalyst price", "USD/kg", 1.0),
-        "steam_credit": ("steam credit", "USD/GJ", 1.0),
-        "discount_rate": ("discount rate", "%/yr", 100.0),
-        "contingency": ("contingency", "% of bare-module cost", 100.0),
-    },
+    "ammonia_loop": {"product_price": ("ammonia price", "USD/t", 1000.0),
+                     "hydrogen_price": ("hydrogen price", "USD/kg", 1.0), **_COMMON_SLIDERS},
+    "so2_converter": {"product_price": ("acid price", "USD/t", 1000.0),
+                      "sulfur_price": ("sulfur price", "USD/t", 1000.0), **_COMMON_SLIDERS},
 }
 
 #: The two decisions of each case's map.

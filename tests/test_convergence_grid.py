@@ -94,13 +94,17 @@ def assert_all_finite(res):
         assert np.isfinite(v).all(), key
 
 
+def assert_spans_bounds(study, dec, lo, hi):
+    """The design spans the study's bounds: its extremes lie within 1e-3 of each bound."""
+    x = np.stack([dec[k] for k in study.free], axis=-1)
+    assert np.all(x.min(axis=0) <= lo + 1e-3 * (hi - lo)) and np.all(x.max(axis=0) >= hi - 1e-3 * (hi - lo))
+
+
 @pytest.mark.slow
 def test_ammonia_study_grid_converges_or_says_why():
     study, dec, phys, (lo, hi), n, res = evaluate(STUDIES / "ammonia_port_aldren.toml")
     assert n >= 10_000 and len(res) == n
-    # The design spans the study's bounds: its extremes lie within 1e-3 of each bound.
-    x = np.stack([dec[k] for k in study.free], axis=-1)
-    assert np.all(x.min(axis=0) <= lo + 1e-3 * (hi - lo)) and np.all(x.max(axis=0) >= hi - 1e-3 * (hi - lo))
+    assert_spans_bounds(study, dec, lo, hi)
     counts = report("ammonia_port_aldren", res)
     assert set(counts) <= set(ammonia.STATUSES), set(counts) - set(ammonia.STATUSES)
     # No unexplained failures: the two statuses that are not physical reasons never occur.
@@ -126,8 +130,7 @@ def test_ammonia_study_grid_converges_or_says_why():
 def test_acid_study_grid_converges_or_says_why():
     study, dec, phys, (lo, hi), n, res = evaluate(STUDIES / "acid_redmesa.toml")
     assert n >= 10_000 and len(res) == n
-    x = np.stack([dec[k] for k in study.free], axis=-1)
-    assert np.all(x.min(axis=0) <= lo + 1e-3 * (hi - lo)) and np.all(x.max(axis=0) >= hi - 1e-3 * (hi - lo))
+    assert_spans_bounds(study, dec, lo, hi)
     counts = report("acid_redmesa", res)
     assert set(counts) <= set(so2.STATUSES), set(counts) - set(so2.STATUSES)
     assert_all_finite(res)

@@ -122,15 +122,16 @@ def pos(lo, hi):
 
 METHODS = ["auto", "lame", "exponential", "ug27", "Lamé", " AUTO "]
 HEADS = ["ellipsoidal", "torispherical", "hemispherical"]
-SHELL = {
+#: Plausible arguments shared by the shell and head thickness rules.
+WALL = {
     "P": pos(0.0, 2e8),
     "D": pos(0.05, 10.0),
     "S": pos(20e6, 300e6),
     "E": st.floats(0.3, 1.0),
     "corrosion_allowance": st.floats(0.0, 0.01),
     "t_min": st.floats(0.0, 0.01),
-    "method": st.sampled_from(METHODS),
 }
+SHELL = {**WALL, "method": st.sampled_from(METHODS)}
 
 
 @given(inputs=mutated(SHELL, {"method": ANY_CHOICE}), detail=st.booleans())
@@ -165,12 +166,7 @@ def test_shell_thickness_rises_with_pressure(P1, P2, D, S, E, ca, method):
 
 
 HEAD = {
-    "P": pos(0.0, 2e8),
-    "D": pos(0.05, 10.0),
-    "S": pos(20e6, 300e6),
-    "E": st.floats(0.3, 1.0),
-    "corrosion_allowance": st.floats(0.0, 0.01),
-    "t_min": st.floats(0.0, 0.01),
+    **WALL,
     "head": st.sampled_from(HEADS),
     "crown_radius": st.one_of(st.none(), pos(0.05, 10.0)),
     "method": st.sampled_from(METHODS),
