@@ -105,7 +105,7 @@ def _tables():
     return pc, pf, fm, bb, fbm
 
 
-def _row(kind: str) -> pd.Series:
+def _row(kind: str) -> dict:
     pc = _tables()[0]
     if not isinstance(kind, str) or kind not in pc.index:
         raise InputError(
@@ -118,8 +118,10 @@ def _row(kind: str) -> pd.Series:
 # Table lookups are memoised (a study prices thousands of batches with the same kinds): the
 # cached objects are never mutated by their callers.
 @functools.cache
-def _row_cached(kind: str) -> pd.Series:
-    return _tables()[0].loc[kind]
+def _row_cached(kind: str) -> dict:
+    # A plain dict: a study reads these fields thousands of times (a Series look-up costs
+    # about a hundred times more).
+    return _tables()[0].loc[kind].to_dict()
 
 
 def _material_rows(kind: str) -> tuple[pd.DataFrame, str, str]:
@@ -203,13 +205,13 @@ def materials(kind: str) -> list[str]:
     return list(_material_rows(kind)[0]["material"])
 
 
-def _capacity(kind: str, capacity) -> tuple[pd.Series, np.ndarray]:
+def _capacity(kind: str, capacity) -> tuple[dict, np.ndarray]:
     row = _row(kind)
     a = check_positive("capacity", capacity) / float(row["capacity_si_factor"])
     return row, a
 
 
-def _n_units(row: pd.Series, a: np.ndarray) -> np.ndarray:
+def _n_units(row: dict, a: np.ndarray) -> np.ndarray:
     amax = float(row["capacity_max"])
     return np.where(a > amax, np.ceil(a / amax * (1 - 1e-12)), 1.0)
 
@@ -312,6 +314,23 @@ def _pressure_rows_cached(kind: str, pressure_on: str) -> tuple[str, pd.DataFram
     return pclass, rows
 
 
+def _pressure_table(kind: str, pressure_on: str) -> dict:
+    """The pressure-factor rows of ``kind`` as plain numbers and arrays (InputError for a bad
+    kind or ``pressure_on``)."""
+    _pressure_rows(kind, pressure_on)
+    return _pressure_table_cached(kind, pressure_on)
+
+
+@functools.cache
+def _pressure_table_cached(kind: str, pressure_on: str) -> dict:
+    _, rows = _pressure_rows(kind, pressure_on)
+    hard = rows["P_hard_barg"].dropna()
+    return {"method": rows["method"].iloc[0], "hard": float(hard.iloc[0]) if hard.size else None,
+            "top": float(rows["P_high"].max()), "kpa": rows["P_variable"].iloc[0] == "kPa",
+            "lows": rows["P_low"].to_numpy(dtype=float),
+            "C": tuple(np.nan_to_num(rows[c].to_numpy(dtype=float)) for c in ("C1", "C2", "C3"))}
+
+
 def _vessel_fp(p: np.ndarray, d: np.ndarray) -> np.ndarray:
     pa = p + 1.0
     t = pa * d / (2.0 * (VESSEL_SE_BAR - 0.6 * pa)) + VESSEL_CORROSION_ALLOWANCE
@@ -359,12 +378,12 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
     OutOfRangeError
         Pressure far above the table's range.
     """
-    _, rows = _pressure_rows(kind, pressure_on)
+    t = _pressure_table(kind, pressure_on)
     p = check_range("P_barg", P_barg, _FULL_VACUUM_BARG, np.inf, unit="barg")
-    method = rows["method"].iloc[0]
+    method = t["method"]
     if method == "none":
         return scalar_or_array(np.ones_like(p))
-    hard = rows["P_hard_barg"].dropna()
+    hard = t["hard"]
     if method == "vessel":
         if D is None:
             raise InputError(
@@ -372,7 +391,7 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
                 "vessel_diameter(volume, L_over_D) estimates it"
             )
         d = check_positive("D", D, unit="m")
-        top = float(rows["P_high"].max())
+        top = t["top"]
         apply_range_policy(
             f"P_barg (pressure of {kind})",
             p,
@@ -380,29 +399,29 @@ def pressure_factor(kind: str, P_barg, D=None, pressure_on: str = "both"):
             top,
             "barg",
             f"{_SOURCE_P} (vessel thickness formula)",
-            hard_high=float(hard.iloc[0]) if hard.size else top * RANGE_FACTOR,
+            hard_high=hard if hard is not None else top * RANGE_FACTOR,
         )
         with np.errstate(over="ignore", invalid="ignore"):
             fp = _vessel_fp(p, d)
         return scalar_or_array(finite_result("pressure factor", fp, P_barg=p, D=d))
-    kpa = rows["P_variable"].iloc[0] == "kPa"
+    kpa = t["kpa"]
     pv = p * 100.0 if kpa else p
     unit = "kPa" if kpa else "barg"
-    top = float(rows["P_high"].max())
-    hard_high = float(hard.iloc[0]) * (100.0 if kpa else 1.0) if hard.size else top * RANGE_FACTOR
+    top = t["top"]
+    hard_high = hard * (100.0 if kpa else 1.0) if hard is not None else top * RANGE_FACTOR
+    lows = t["lows"]
     apply_range_policy(
         f"P_barg (pressure {'rise ' if kpa else ''}of {kind}{', in kPa' if kpa else ''})",
         pv,
-        float(rows["P_low"].min()),
+        float(lows.min()),
         top,
         unit,
         _SOURCE_P,
         hard_high=hard_high,
     )
     # Segment of each pressure: the last row whose P_low <= P (above the top: the top row).
-    lows = rows["P_low"].to_numpy(dtype=float)
     seg = np.clip(np.searchsorted(lows, pv, side="right") - 1, 0, lows.size - 1)
-    c1, c2, c3 = (np.nan_to_num(rows[c].to_numpy(dtype=float))[seg] for c in ("C1", "C2", "C3"))
+    c1, c2, c3 = (c[seg] for c in t["C"])
     y = np.log10(np.where(pv > 0, pv, 1.0))
     logf = np.where((c1 == 0) & (c2 == 0) & (c3 == 0), 0.0, c1 + c2 * y + c3 * y * y)
     return scalar_or_array(10.0**logf)
