@@ -28,6 +28,15 @@ NU = np.array([-1.0, -3.0, 2.0, 0.0, 0.0])
 RATE = AmmoniaTemkinPyzhev(species=SP)
 
 
+@pytest.fixture(params=["compiled", "numpy"])
+def engine(request, monkeypatch):
+    """Run a test on the compiled twin of the integration (numba) and on the numpy path."""
+    import teakit.process.bed as bed
+
+    monkeypatch.setattr(bed, "COMPILED", request.param == "compiled")
+    return request.param
+
+
 def inlet(B=4, T=(653.15, 673.15, 693.15, 713.15), P=200e5):
     n = np.array([[0.21, 0.63, 0.04, 0.06, 0.06]] * B) * 1000.0
     return Stream(SP, n, np.asarray(T, float)[:B], np.full(B, P))
@@ -47,7 +56,7 @@ def radau_extent(s: Stream, V: float, b: int):
     return sol.y[0, -1]
 
 
-def test_adiabatic_bed_vs_radau():
+def test_adiabatic_bed_vs_radau(engine):
     s = inlet()
     V = np.array([5.0, 5.0, 10.0, 30.0])
     ref = np.array([radau_extent(s, V[b], b) for b in range(4)])
@@ -57,7 +66,7 @@ def test_adiabatic_bed_vs_radau():
         np.testing.assert_allclose(res.extent, ref, rtol=tol)
 
 
-def test_balances_close_for_every_member():
+def test_balances_close_for_every_member(engine):
     s = inlet()
     res = run_bed(RATE, s, np.array([2.0, 8.0, 20.0, 60.0]), nu=NU)
     sset = species_set(SP)
@@ -68,7 +77,7 @@ def test_balances_close_for_every_member():
     np.testing.assert_allclose(enthalpy_flow(res.outlet.n, res.outlet.T, sset), enthalpy_flow(s.n, s.T, sset), rtol=1e-9)
 
 
-def test_adiabatic_rise_vs_hand_calculation():
+def test_adiabatic_rise_vs_hand_calculation(engine):
     # First law for a small extent: dT = -dH_rxn(T) xi / sum(n cp) (hand formula, small-extent
     # limit); the integrated bed agrees within 1 %.
     s = inlet(B=1, T=(673.15,))
@@ -91,7 +100,7 @@ def test_long_isothermal_bed_reaches_equilibrium():
 
 
 @pytest.mark.parametrize("steps", [6, 12, 24])
-def test_long_bed_in_few_steps_ends_at_equilibrium_without_overshoot(steps):
+def test_long_bed_in_few_steps_ends_at_equilibrium_without_overshoot(steps, engine):
     # A 250 m3 bed lighting off from 578 K at 300 bar, integrated in few steps (a step far longer
     # than the light-off): the adiabatic path of a single exothermic reaction rises monotonically
     # to the equilibrium at its outlet temperature (first law; equilibrium of the thermodynamic
@@ -106,6 +115,65 @@ def test_long_bed_in_few_steps_ends_at_equilibrium_without_overshoot(steps):
     assert res.outlet.y[0, 2] == pytest.approx(eq["NH3"][0], rel=1e-9)
     assert np.all(np.diff(res.profile_T[0]) >= -1e-12 * res.outlet.T[0])  # rising, to round-off
     assert res.T_max[0] == pytest.approx(res.outlet.T[0], rel=1e-12)
+
+
+def _random_ammonia_beds(B, seed):
+    rng = np.random.default_rng(seed)
+    y = np.column_stack([rng.uniform(0.15, 0.3, B), rng.uniform(0.55, 0.75, B), rng.uniform(0.0, 0.08, B),
+                         rng.uniform(0.0, 0.05, B), rng.uniform(0.0, 0.05, B)])
+    y /= y.sum(axis=1, keepdims=True)
+    s = Stream(SP, rng.uniform(500.0, 3000.0, B)[:, None] * y, rng.uniform(620.0, 760.0, B), rng.uniform(80e5, 300e5, B))
+    return s, rng.uniform(0.5, 60.0, B), rng.uniform(0.3, 2.0, B)
+
+
+@pytest.mark.parametrize("steps", [4, 16, 24])
+def test_compiled_twin_agrees_with_the_numpy_path(steps, monkeypatch):
+    # The same algorithm in the same operation order; exp and pow of numba and numpy may differ
+    # in the last bit, and the difference Jacobian of the W-method (step 1e-4 of the extent)
+    # amplifies that where a step is stiff: measured up to 2e-6 relative in the extent and 1e-8
+    # relative in temperature over this batch (many members lighting off, some repaired after
+    # overshooting), far below the integration error itself (2e-4 at 24 steps, test above).
+    import teakit.process.bed as bed
+
+    s, V, act = _random_ammonia_beds(300, steps)
+    out = {}
+    for compiled in (True, False):
+        monkeypatch.setattr(bed, "COMPILED", compiled)
+        out[compiled] = run_bed(RATE, s, V, nu=NU, steps=steps, rate_params={"activity": act})
+    a, b = out[True], out[False]
+    np.testing.assert_allclose(a.extent, b.extent, rtol=2e-5)
+    np.testing.assert_allclose(a.profile_xi, b.profile_xi, rtol=2e-5, atol=1e-9 * s.n.sum(axis=1).max())
+    np.testing.assert_allclose(a.profile_T, b.profile_T, rtol=1e-7)
+    np.testing.assert_allclose(a.T_max, b.T_max, rtol=1e-7)
+    np.testing.assert_allclose(a.outlet.n, b.outlet.n, rtol=2e-5, atol=1e-12)
+    np.testing.assert_array_equal(a.profile_V, b.profile_V)
+
+
+def test_compiled_twin_is_used_only_where_it_applies(monkeypatch):
+    # Adiabatic, no pressure drop, teakit's K, alpha = 1/2, one effectiveness: compiled; any
+    # other law or option takes the numpy path; without numba everything does.
+    import sys
+
+    import teakit.process._bed_jit as jit
+    import teakit.process.bed as bed
+
+    calls = []
+    real = jit.integrate
+    monkeypatch.setattr(jit, "integrate", lambda *a: calls.append(1) or real(*a))
+    monkeypatch.setattr(bed, "COMPILED", True)
+    s = inlet(B=2)
+    V = np.array([3.0, 6.0])
+    run_bed(RATE, s, V, nu=NU, steps=8)
+    assert len(calls) == 1
+    for law, kw in ((AmmoniaTemkinPyzhev(species=SP, alpha=0.6), {}),
+                    (AmmoniaTemkinPyzhev(species=SP, Ka="gillespie-beattie"), {}),
+                    (RATE, {"mode": "isothermal"}),
+                    (RATE, {"ergun": ErgunBed(diameter=2.5)})):
+        run_bed(law, s, V, nu=NU, steps=8, **kw)
+    assert len(calls) == 1
+    monkeypatch.setitem(sys.modules, "teakit.process._bed_jit", None)  # numba missing
+    res = run_bed(RATE, s, V, nu=NU, steps=8)
+    assert len(calls) == 1 and np.all(res.extent > 0)
 
 
 def test_long_adiabatic_bed_vs_cantera_hp():

@@ -526,6 +526,24 @@ class AmmoniaTemkinPyzhev(RateLaw):
         r = 2.0 * k2 * (forward - reverse) * st.activity * st.effectiveness  # kmol/(m3 h)
         return _finite(type(self).__name__, r * _KMOL_H_TO_MOL_S, st)
 
+    def compiled_constants(self):
+        """What the compiled bed integration (:mod:`teakit.process._bed_jit`) needs of this law,
+        or None where it does not apply (``Ka`` other than teakit's, alpha other than 1/2, or an
+        effectiveness that varies over the batch: those stay on the numpy path).
+
+        Returns
+        -------
+        dict or None
+            Species indices, effectiveness [-], ln K coefficients, constants of k2.
+        """
+        half = self._half
+        if self.Ka != "teakit" or self.alpha != 0.5 or np.ndim(self.effectiveness) != 0 or half._c_nu is None:
+            return None
+        return {"index": tuple(self.species.index(n) for n in ("N2", "H2", "NH3")),
+                "effectiveness": float(self.effectiveness), "cK": np.ascontiguousarray(half._c_nu[0], dtype=float),
+                "T_midK": float(half._T_mid), "nh3_floor": self.nh3_floor,
+                "k2": (DS_K2_PRE, DS_E_CAL, DS_R_CAL)}
+
     def kernel(self, T, P, y, activity=1.0):
         """The extent rate without argument checks or warnings: the reactor's hot path.
 

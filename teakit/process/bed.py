@@ -37,6 +37,7 @@ changes by under 1 % of the heat of reaction across a bed (Peng-Robinson), which
 
 from __future__ import annotations
 
+import importlib
 from dataclasses import dataclass
 
 import numpy as np
@@ -60,6 +61,11 @@ MAX_VOLUME = 1e5
 OVERSHOOT_K = 0.05
 #: Regula-falsi steps that bring a step gone past equilibrium back to it [-].
 OVERSHOOT_ITERATIONS = 8
+#: Use the compiled twin of the integration (:mod:`teakit.process._bed_jit`, numba) where it
+#: applies: adiabatic beds without pressure drop whose rate law offers ``compiled_constants``
+#: (the ammonia rate). Same algorithm and arithmetic order; results agree with the numpy path to
+#: round-off (tests/test_bed.py).
+COMPILED = True
 
 
 @dataclass(frozen=True)
@@ -203,6 +209,19 @@ def run_bed(
     c0 = ideal_gas.combined_coefficients(sset, n0)  # (B, 2, 7)
     c_nu = ideal_gas.combined_coefficients(sset, nu)  # (2, 7)
     H0 = T0 * ideal_gas.poly_h_RT(c0, T0, T_mid)  # H/R [K mol/s]
+
+    if ergun is None and mode == "adiabatic" and COMPILED:
+        jit = _compiled(rate)
+        if jit is not None:
+            act = np.broadcast_to(np.asarray(params.get("activity", 1.0), dtype=float), (B,))
+            fr = _grid(steps, grading)
+            xi, T, prof_xi, prof_T = jit[0].integrate(
+                np.ascontiguousarray(n0, dtype=float), np.ascontiguousarray(T0), np.ascontiguousarray(P0), V,
+                np.ascontiguousarray(act), jit[1]["effectiveness"], np.ascontiguousarray(nu, dtype=float),
+                *jit[1]["index"], np.ascontiguousarray(c0), np.ascontiguousarray(c_nu), np.ascontiguousarray(H0),
+                T_mid, float(lo_T), float(hi_T), jit[1]["cK"], jit[1]["T_midK"], fr, np.ascontiguousarray(xi_min),
+                np.ascontiguousarray(xi_max), jit[1]["nh3_floor"], *jit[1]["k2"], OVERSHOOT_K, OVERSHOOT_ITERATIONS)
+            return _result(inlet, nu, V, fr, xi, T, P0, prof_xi, prof_T, np.zeros(B, dtype=bool), None, T0)
 
     # Coefficients laid out (range, coefficient, member), so that each coefficient is one
     # contiguous row over the batch.
@@ -415,15 +434,20 @@ def run_bed(
         if done:
             break
     prof_T[:, steps] = T
+    return _result(inlet, nu, V, fr, xi, T, P, prof_xi, prof_T, collapsed, ergun, T0)
+
+
+def _result(inlet, nu, V, fr, xi, T, P, prof_xi, prof_T, collapsed, ergun, T0):
+    """The BedResult of an integration, or OutOfRangeError where it gave no finite state."""
     bad = ~(np.isfinite(xi) & np.isfinite(T) & np.isfinite(P))
     if bad.any():  # a safety net: never hand back NaN
         k = np.flatnonzero(bad)
         raise OutOfRangeError(
             f"inlet{'' if ergun is None else ' or ergun'}: the rate law gave no finite rate along the bed for {k.size} member(s), first "
-            f"member {k[0]} (inlet T = {T0[k[0]]:g} K, P = {P0[k[0]]:g} Pa, volume = {V[k[0]]:g} m3): "
+            f"member {k[0]} (inlet T = {T0[k[0]]:g} K, P = {inlet.P[k[0]]:g} Pa, volume = {V[k[0]]:g} m3): "
             "the inlet lies outside the rate law's validity"
         )
-    n_out = np.maximum(n0 + xi[:, None] * nu, 0.0)
+    n_out = np.maximum(inlet.n + xi[:, None] * nu, 0.0)
     outlet = Stream(inlet.species, n_out, T, P)
     return BedResult(
         outlet=outlet,
@@ -434,3 +458,19 @@ def run_bed(
         profile_xi=prof_xi,
         collapsed=collapsed,
     )
+
+
+def _compiled(rate):
+    """(module, constants) of the compiled integration for this rate law, or None (no numba,
+    or a law without :meth:`compiled_constants`, or one that declines)."""
+    get = getattr(rate, "compiled_constants", None)
+    if get is None:
+        return None
+    consts = get()
+    if consts is None:
+        return None
+    try:
+        jit = importlib.import_module("teakit.process._bed_jit")
+    except ImportError:  # numba missing: the numpy path serves
+        return None
+    return jit, consts
