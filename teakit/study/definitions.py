@@ -102,7 +102,7 @@ def _ammonia():
         # Overall yield: NH3 made per mol of N2 in the make-up (x 2), i.e. feed utilisation.
         "yield": lambda v: v["product_NH3_flow"] / (2.0 * v["makeup_N2"]),
         "yield_name": "nitrogen converted to product per nitrogen fed",
-        "search_options": {"steps": 16, "tol": 1e-7},
+        "search_options": {"steps": 16, "tol": 1e-7, "flash_tol": 1e-10},
         "constraints": {
             "peak_catalyst_temperature": ("max", 803.15, "K"),  # 530 degC, iron catalyst (common practice)
             "makeup_discharge_temperature": ("max", 453.15, "K"),  # 180 degC stage discharge (common practice)

@@ -50,6 +50,7 @@ from teakit.process.reactor import multibed
 from teakit.process.result import ProcessResult
 from teakit.process.streams import Stream, enthalpy_flow, mix, temperature_from_enthalpy
 from teakit.thermo.species import species_set
+from teakit.validation import check_range
 
 __all__ = ["DECISIONS", "FLASH_FAILED", "NOT_CONVERGED", "PHYSICS", "SPECIES", "STATUSES", "ammonia_loop"]
 
@@ -215,7 +216,7 @@ def _flash_enthalpy(T, P, n, kij, K=None):
 
 def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = None, *,
                  steps: int = 24, max_iter: int = 40, warm: Mapping | None = None,
-                 tol: float = 3e-10) -> ProcessResult:
+                 tol: float = 3e-10, flash_tol: float = 1e-13) -> ProcessResult:
     """Solve a batch of ammonia synthesis loops.
 
     Parameters
@@ -236,6 +237,10 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         Loop convergence: largest change of the tear stream relative to its largest flow [-].
         With the default the element balances close to about 3e-10 of the converter feed
         (3e-9 of the make-up).
+    flash_tol : float
+        Convergence of the separator flash inside the loop, max change of ln K (1e-14 to 1e-8)
+        [-]; the default keeps its error far below the loop's, a looser value serves a looser
+        ``tol`` (the optimiser's search).
     warm : mapping, optional
         ``result.state`` of an earlier call at nearby points (same batch size): the converged
         tear and inverse Jacobian start the solve, which then needs a few iterations only.
@@ -253,6 +258,9 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         For unknown names or values outside their ranges (the message names them).
     """
     d, B = resolve_case(decisions, physics, DECISIONS, PHYSICS)
+    if isinstance(flash_tol, bool):
+        raise InputError(f"flash_tol must be a number from 1e-14 to 1e-8, got {flash_tol!r}")
+    flash_tol = float(check_range("flash_tol", flash_tol, 1e-14, 1e-8))
     if warm is not None:
         warm = _check_warm(warm, B)
     frac2_total = d["bed1_fraction"] + d["bed2_fraction"]
@@ -266,7 +274,8 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         m = np.flatnonzero(inv.ravel() == g)
         sub = {k: v[m] for k, v in d.items()}
         w = None if warm is None else {k: np.asarray(v)[m] for k, v in warm.items()}
-        parts.append((m, _solve(sub, len(m), _kij({"kij_NH3_H2": uniq[g, 0], "kij_NH3_N2": uniq[g, 1]}), steps, max_iter, w, tol)))
+        parts.append((m, _solve(sub, len(m), _kij({"kij_NH3_H2": uniq[g, 0], "kij_NH3_N2": uniq[g, 1]}), steps, max_iter, w, tol,
+                                flash_tol)))
     if len(parts) == 1:
         return parts[0][1]
     return _merge(parts, B)
@@ -317,7 +326,7 @@ def _merge(parts, B):
     return ProcessResult(first.case, values, first.units, equipment, status.astype(str), profiles, state)
 
 
-def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
+def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10, flash_tol=1e-13):
     sset = species_set(SPECIES)
     rate = _rate()
     P = d["pressure"]
@@ -357,7 +366,7 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10):
     def separator_flash(T, P_, z, idx, unique):
         """The separator flash, started from each member's K of its previous flash where that
         was two-phase; a call that covers each member once keeps its K for the next."""
-        fl, failed = _flash(T, P_, z, kij, K_sep[idx])
+        fl, failed = _flash(T, P_, z, kij, K_sep[idx], tol=flash_tol)
         if unique:
             two = (fl.beta > 0.0) & (fl.beta < 1.0)
             K_sep[idx] = np.where(two[:, None], fl.K, np.nan)
