@@ -231,3 +231,39 @@ def test_comparative_statics_of_the_optimum(demo_optimum, h2_price, factor):
     for i, k in enumerate(("electricity_price", "catalyst_price", "hydrogen_price"), start=1):
         cross = s.evaluate(opts[0].decisions, sets[i])["npv [USD]"].iloc[0]
         assert opts[i].objective >= cross - 1e-4 * abs(cross), k
+
+
+def test_points_infeasible_only_at_full_accuracy_are_repaired(demo_optimum):
+    # The search runs a coarser process (the case's search_options) with a small constraint
+    # slack; where the two accuracies disagree by more than the slack, a found point can break
+    # a limit at full accuracy. Such members are searched again close by at full accuracy.
+    # Here: the demo optimum with a hotter first-bed inlet, just past the 530 degC peak limit
+    # at full accuracy, beside the optimum itself (feasible: left alone).
+    s, best = demo_optimum
+    dec = {k: np.array([v, v]) for k, v in best.decisions.items()}
+    peak = s._constraints["peak_catalyst_temperature"].limit
+    hot = best.decisions["inlet_temperature"]
+    for _ in range(40):  # walk up to the first inlet that breaks the limit (by under 2 K)
+        hot += 0.5
+        dec["inlet_temperature"][0] = hot
+        df = s.evaluate(dec)
+        if not df["feasible"].iloc[0]:
+            break
+    assert not df["feasible"].iloc[0] and df["peak_catalyst_temperature [K]"].iloc[0] < peak + 2.0
+    _, par, _ = s._arrays({}, {})
+    par = {k: np.repeat(v, 2) for k, v in par.items()}
+    new, fixed, n_eval = s._repair({k: v.copy() for k, v in dec.items()}, par, df, "objective", 2e-3, 15, 0)
+    assert n_eval > 0 and fixed["feasible"].all()
+    # A local search from there: it ends no worse than the last feasible point of the walk
+    # (half a kelvin cooler), which its first stencil brackets.
+    cool = {k: v.copy() for k, v in dec.items()}
+    cool["inlet_temperature"][0] = hot - 0.5
+    ref = s.evaluate(cool)
+    assert ref["feasible"].iloc[0]
+    assert fixed["npv [USD]"].iloc[0] >= ref["npv [USD]"].iloc[0] - 1e-6 * abs(best.objective)
+    for k in s.free:
+        assert new[k][1] == dec[k][1]
+    assert fixed["npv [USD]"].iloc[1] == df["npv [USD]"].iloc[1]
+    # The repaired frame is the full-accuracy evaluation of the repaired decisions.
+    again = s.evaluate(new)
+    np.testing.assert_allclose(again["npv [USD]"].to_numpy(), fixed["npv [USD]"].to_numpy(), rtol=1e-9)
