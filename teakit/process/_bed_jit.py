@@ -43,7 +43,7 @@ def _rate(T, P, nN2, nH2, nNH3, ntot, act, eff, cK, T_mid, nh3_floor, pre, e_cal
     phi_n2 = 0.93431737 + 0.3101804e-3 * T + 0.295896e-3 * p - 0.2707279e-6 * T**2 + 0.4775207e-6 * p**2
     phi_h2 = math.exp(
         math.exp(-3.8402 * T**0.125 + 0.541) * p
-        - math.exp(-0.1263 * T**0.5 - 15.980) * p**2
+        - math.exp(-0.1263 * math.sqrt(T) - 15.980) * p**2  # numpy computes T**0.5 as sqrt
         + 300.0 * math.exp(-0.011901 * T - 5.941) * (math.exp(-p / 300.0) - 1.0)
     )
     phi_nh3 = 0.1438996 + 0.2028538e-2 * T - 0.4487672e-3 * p - 0.1142945e-5 * T**2 + 0.2761216e-6 * p**2

@@ -750,10 +750,14 @@ class Study:
         # varying between sets (NPV and annual profit are linear in every price and in the
         # capital factors at fixed discount rate, tax rate, life and hours; losses are credited),
         # the objective of every stored point is a(x) + sum_k (e_k - e0_k) b_k(x), computed once
-        # per point. Checked against the direct pricing before use.
+        # per point. Checked against the direct pricing before use. It costs K + 1 pricings per
+        # stored point (K varying prices) against about one per track that meets the point, so it
+        # serves where a physics group holds more tracks than that (price-only Monte Carlo), not
+        # where the physics differs from set to set (a Sobol design: one to a few sets a group).
         varying = [k for k in enames if np.ptp(np.asarray(par[k], float)) > 0]
         lin = None
         if (varying and set(varying) <= _LINEAR_ECONOMICS and self.objective in ("npv", "annual_profit")
+                and len(tr_p) > (len(varying) + 1) * G
                 and all(c.function is None for c in self._constraints.values())):
             e0 = {k: float(np.asarray(par[k])[0]) for k in enames}
             delta = {k: (0.5 * e0[k] if e0[k] > 0 else 0.01) for k in varying}
