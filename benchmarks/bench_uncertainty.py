@@ -58,13 +58,6 @@ def _warm(_=None):
     return True
 
 
-def cluster(n_workers):
-    from distributed import Client, LocalCluster
-
-    c = LocalCluster(n_workers=n_workers, threads_per_worker=1, dashboard_address=None, processes=True)
-    client = Client(c)
-    client.run(_warm)
-    return c, client
 
 
 def sobol_run(study, n, second, executor, nominal, chunk_size):
@@ -136,13 +129,13 @@ def main(argv=None):
 
 
 def on_cluster(n_workers, study, n, second, nominal, chunk_size):
-    """Sobol on a fresh, warmed-up LocalCluster of ``n_workers``, in chunks of ``chunk_size`` rows."""
-    c, client = cluster(n_workers)
-    try:
+    """Sobol on a fresh, warmed-up local Dask cluster of ``n_workers`` (teakit's
+    ``local_cluster``), in chunks of ``chunk_size`` rows."""
+    from teakit.uncertainty import local_cluster
+
+    with local_cluster(n_workers) as client:
+        client.run(_warm)
         return sobol_run(study, n, second, client.get_executor(), nominal, max(1, chunk_size))
-    finally:
-        client.close()
-        c.close()
 
 
 if __name__ == "__main__":

@@ -92,15 +92,39 @@ def reference():
 
 
 @pytest.fixture(scope="module")
-def dask_executor():
-    distributed = pytest.importorskip("distributed")
-    cluster = distributed.LocalCluster(n_workers=2, threads_per_worker=1, dashboard_address=None, processes=True)
-    client = distributed.Client(cluster)
-    try:
-        yield client.get_executor()
-    finally:
-        client.close()
-        cluster.close()
+def dask_client():
+    pytest.importorskip("distributed")
+    from teakit.uncertainty import local_cluster
+
+    with local_cluster(2) as client:
+        yield client
+
+
+@pytest.fixture(scope="module")
+def dask_executor(dask_client):
+    return dask_client.get_executor()
+
+
+def _worker_environment():
+    import os
+
+    return {k: os.environ.get(k) for k in ("MALLOC_TRIM_THRESHOLD_", "OMP_NUM_THREADS")}
+
+
+def test_local_cluster_workers_keep_the_default_allocator(dask_client):
+    # distributed sets MALLOC_TRIM_THRESHOLD_=65536 in its workers by default, which also fixes
+    # glibc's mmap threshold (mallopt(3)): numpy temporaries above 128 kB are then mapped and
+    # unmapped on every allocation. local_cluster leaves it unset; threads stay at one.
+    env = dask_client.run(_worker_environment)
+    assert len(env) == 2
+    for e in env.values():
+        assert e["MALLOC_TRIM_THRESHOLD_"] is None and e["OMP_NUM_THREADS"] == "1"
+    assert all(w["nthreads"] == 1 for w in dask_client.scheduler_info()["workers"].values())
+    from teakit.uncertainty import local_cluster
+
+    with pytest.raises(InputError, match="n_workers must be a whole number from 1 to 256"):
+        with local_cluster(0):
+            pass
 
 
 def test_in_process_chunks_equal_one_call(reference):

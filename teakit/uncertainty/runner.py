@@ -22,6 +22,8 @@ row) and concatenates the outputs in input order.
   lists their indices, row ranges, the reasons and their inputs, after every other chunk has
   finished (and been checkpointed). Dask itself also re-runs tasks whose worker process died.
 - **Progress** is shown with :mod:`tqdm.auto` (a widget in notebooks, a text bar in terminals).
+- **A local Dask cluster** for studies: :func:`local_cluster` (one thread per worker, and
+  without the allocator setting that slows numpy-heavy models in distributed's workers).
 
 The model is called on a chunk as it is sliced from ``inputs`` (same columns, same index); it
 must be deterministic for a given chunk for results to be reproducible, and picklable (defined at
@@ -38,6 +40,7 @@ import math
 import os
 import pickle
 import time
+from contextlib import contextmanager
 from pathlib import Path
 
 import numpy as np
@@ -50,6 +53,7 @@ __all__ = [
     "atomic_write_bytes",
     "default_chunk_size",
     "input_key",
+    "local_cluster",
     "parquet_bytes",
     "run_batches",
 ]
@@ -275,6 +279,50 @@ def _call(model, chunk, index, attempt):
 def _reason(exc):
     text = f"{type(exc).__name__}: {exc}"
     return text if len(text) <= 400 else text[:397] + "..."
+
+
+@contextmanager
+def local_cluster(n_workers: int = 2, **options):
+    """A Dask ``distributed`` cluster on this machine for teakit's batch runs; yields its Client.
+
+    Pass ``client.get_executor()`` as ``executor=`` to a study's uncertainty methods or to
+    :func:`run_batches`. Worker processes with one thread each (teakit's models are vectorised
+    numpy with Python between the calls), no dashboard, and without distributed's default
+    ``MALLOC_TRIM_THRESHOLD_=65536`` in the workers' environment: setting it also fixes glibc's
+    mmap threshold, so every numpy temporary above 128 kB is mapped and unmapped afresh. Measured
+    on this project's 2-core machine kind: a chunk of 1,408 ammonia re-optimisations took 33 s
+    in such a worker against 25 s without the setting, and ``np.exp(a) * a + a.sum(1)`` on
+    (9600, 5) arrays 2.9x as long. The cluster and client are closed on exit.
+
+    Parameters
+    ----------
+    n_workers : int
+        Worker processes, 1 to 256 [-].
+    **options
+        Further keyword arguments of ``distributed.LocalCluster`` (e.g. ``memory_limit``).
+
+    Examples
+    --------
+    >>> from teakit.uncertainty import local_cluster      # doctest: +SKIP
+    >>> with local_cluster(2) as client:                  # doctest: +SKIP
+    ...     si = study.sobol(n=1024, executor=client.get_executor())
+    """
+    if isinstance(n_workers, bool) or not isinstance(n_workers, int) or not 1 <= n_workers <= 256:
+        raise InputError(f"n_workers must be a whole number from 1 to 256, got {n_workers!r}")
+    import dask
+    import distributed
+
+    settings = {"n_workers": n_workers, "threads_per_worker": 1, "dashboard_address": None, "processes": True} | options
+    with dask.config.set({"distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_": None}):
+        cluster = distributed.LocalCluster(**settings)
+    try:
+        client = distributed.Client(cluster)
+        try:
+            yield client
+        finally:
+            client.close()
+    finally:
+        cluster.close()
 
 
 def run_batches(model, inputs, *, executor=None, chunk_size: int | None = None, checkpoint=None,
