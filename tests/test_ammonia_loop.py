@@ -156,3 +156,21 @@ def test_search_accuracy_is_close_to_full_accuracy(batch):
         ammonia_loop(dec, flash_tol=1e-3)
     with pytest.raises(InputError, match="flash_tol"):
         ammonia_loop(dec, flash_tol=True)
+
+
+def test_warm_start_from_nearby_points_gives_the_same_loop(batch):
+    # result.state of an earlier call (tear, inverse Jacobian, flash K-values) starts a call at
+    # nearby points; the converged loop is the same as from the cold start, to the loop's
+    # tolerance (3e-10 of the converter feed) times the sensitivity of each figure.
+    dec, cold = batch
+    moved = {k: v * (1.0 + 0.01 * (k == "pressure")) for k, v in dec.items()}
+    ref = ammonia_loop(moved)
+    warm = ammonia_loop(moved, warm=cold.state)
+    assert set(cold.state) >= {"tear", "H", "scale", "K_sep", "K_T2"}
+    ok = ref.ok & warm.ok
+    assert ok.sum() >= 0.9 * len(ok) and np.array_equal(ref.status, warm.status)
+    for k in ("electric_power", "makeup_flow", "refrigeration_duty", "peak_catalyst_temperature"):
+        np.testing.assert_allclose(warm[k][ok], ref[k][ok], rtol=1e-7)
+    bad = dict(cold.state) | {"K_T2": -np.ones_like(cold.state["K_T2"])}
+    with pytest.raises(InputError, match="K_T2"):
+        ammonia_loop(moved, warm=bad)

@@ -246,7 +246,8 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         ``tol`` (the optimiser's search).
     warm : mapping, optional
         ``result.state`` of an earlier call at nearby points (same batch size): the converged
-        tear and inverse Jacobian start the solve, which then needs a few iterations only.
+        tear and inverse Jacobian start the solve, which then needs a few iterations only, and
+        the K-values of its two-phase flashes (``K_sep``, ``K_T2``, optional) start the flashes.
 
     Returns
     -------
@@ -303,6 +304,18 @@ def _check_warm(warm, B):
         out[k] = a
     if not np.all(np.isfinite(out["scale"]) & (out["scale"] > 0)):
         raise InputError("warm['scale'] must be finite and > 0")
+    for k in ("K_sep", "K_T2"):  # optional: K-values of the flashes (NaN where one phase)
+        if k not in warm:
+            continue
+        try:
+            a = np.asarray(warm[k], dtype=float)
+        except (TypeError, ValueError):
+            raise InputError(f"warm[{k!r}] must be an array of numbers") from None
+        if a.shape != (B, len(SPECIES)):
+            raise InputError(f"warm[{k!r}] must have shape {(B, len(SPECIES))} for a batch of {B}, got {a.shape}")
+        if np.any(~np.isnan(a) & ~(np.isfinite(a) & (a > 0))):
+            raise InputError(f"warm[{k!r}] must hold K-values > 0 (NaN where a flash was one phase)")
+        out[k] = a
     return out
 
 
@@ -358,6 +371,8 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10, flash_tol=1e-13):
     full_steps = steps
     cache: dict[str, np.ndarray] = {}
     K_sep = np.full((B, len(SPECIES)), np.nan)  # K of each member's last two-phase separator flash
+    if warm is not None and "K_sep" in warm:
+        K_sep = warm["K_sep"].copy()
 
     def remember(idx, **arrays):
         """Keep what an evaluation at full accuracy computed, per member (for the final figures)."""
@@ -528,8 +543,14 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10, flash_tol=1e-13):
     Q_steam_eff = np.maximum(H(eff) - H(eff.at(T=T_hg)) - np.maximum(Q_pre_high - q_inter.sum(axis=-1), 0.0), 0.0)
     # Cold end with real-fluid enthalpies (latent heat of the condensing ammonia).
     T_wc_out = np.minimum(T_cw, T2)
-    H_T2, _, fail_T2 = _flash_enthalpy(T2, P_sep, eff.n, kij)
-    H_cw, _, fail_cw = _flash_enthalpy(T_wc_out, P_sep, eff.n, kij)
+    H_T2, fl_T2, fail_T2 = _flash_enthalpy(T2, P_sep, eff.n, kij, None if warm is None else warm.get("K_T2"))
+    # The effluent often leaves the feed-effluent exchanger below the cooling-water temperature
+    # (the feed comes from the cold separator): the water cooler then does nothing and its outlet
+    # is the T2 state, flashed once.
+    H_cw, fail_cw = H_T2.copy(), fail_T2.copy()
+    cool = np.flatnonzero(T_wc_out < T2)
+    if cool.size:
+        H_cw[cool], _, fail_cw[cool] = _flash_enthalpy(T_wc_out[cool], P_sep[cool], eff.n[cool], kij)
     H_sep, fl, fail_sep = _flash_enthalpy(T_sep, P_sep, eff.n, kij, K_sep)
     status[failed_flash | fail_T2 | fail_cw | fail_sep] = FLASH_FAILED
     Q_cw = np.maximum(H_T2 - H_cw, 0.0)
@@ -632,7 +653,11 @@ def _solve(d, B, kij, steps, max_iter, warm=None, tol=3e-10, flash_tol=1e-13):
         "bed_V": np.stack([b.profile_V for b in beds], axis=1),
         "bed_feed_N2": np.stack([b.outlet.n[:, 0] + b.extent for b in beds], axis=1),
     }
-    state = {"tear": x, "H": keep["H"], "scale": keep["scale"]}
+    # The solver state for warm starts at nearby points: the tear, its inverse Jacobian, and the
+    # K-values of the separator and T2 flashes where two-phase.
+    two_T2 = (fl_T2.beta > 0.0) & (fl_T2.beta < 1.0)
+    state = {"tear": x, "H": keep["H"], "scale": keep["scale"], "K_sep": K_sep.copy(),
+             "K_T2": np.where(two_T2[:, None], fl_T2.K, np.nan)}
     return ProcessResult("ammonia_loop", values, units, equipment, status.astype(str), profiles, state)
 
 
