@@ -241,9 +241,10 @@ def ammonia_loop(decisions: Mapping | None = None, physics: Mapping | None = Non
         With the default the element balances close to about 3e-10 of the converter feed
         (3e-9 of the make-up).
     flash_tol : float
-        Convergence of the separator flash inside the loop, max change of ln K (1e-14 to 1e-8)
-        [-]; the default keeps its error far below the loop's, a looser value serves a looser
-        ``tol`` (the optimiser's search).
+        Tightest convergence of the separator flash inside the loop, max change of ln K (1e-14
+        to 1e-8) [-]: each flash is solved to 1e-3 of the loop's residual so far, down to this
+        as the loop converges. The default keeps its error far below the loop's; a looser value
+        serves a looser ``tol`` (the optimiser's search).
     warm : mapping, optional
         ``result.state`` of an earlier call at nearby points (same batch size): the converged
         tear and inverse Jacobian start the solve, which then needs a few iterations only, and
