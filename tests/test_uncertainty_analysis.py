@@ -66,6 +66,35 @@ def test_sobol_indices_of_a_linear_model():
         assert np.all(err <= 2.0 * ft[f"{col}_conf"].to_numpy()), (col, ft, exact)
 
 
+def noisy_model(df):
+    # y = x1 + e, with e independent of the inputs (a draw seeded by the chunk's first row, so
+    # the run is reproducible): like an optimal decision resolved only to an optimiser's tolerance.
+    e = np.random.default_rng([7, int(df.index[0])]).normal(0.0, 0.5, len(df))
+    return pd.DataFrame({"y": df["x1"] + e})
+
+
+def test_sobol_summary_bounds_the_noise_share():
+    # x1 ~ U(0, 1) (variance 1/12) plus noise of variance 1/4: the noise share of the output
+    # variance is 0.25 / (0.25 + 1/12) = 0.75 (analytic). Jansen's total index of a parameter
+    # with no effect (x2, x3) estimates E[(e - e')^2] / 2 V = that share, so the smallest total
+    # index of the summary is close to it, while a noise-free linear output has a small floor
+    # (its smallest true index, 0.5^2 (13/18) / 5.54 = 0.033, analytic as above).
+    from teakit.study.uncertainty import SobolResult
+
+    dists = {k: {"distribution": "uniform", "low": 0.0, "high": 1.0} for k in ("x1", "x2", "x3")}
+    ft, _ = _sobol_via_pipeline(noisy_model, dists, 1024, seed=4)
+    res = SobolResult(pd.concat({"y [-]": ft}, names=["output"]), None, None, None)
+    row = res.summary().loc["y [-]"]
+    assert row["top_parameter"] == "x1"
+    assert abs(row["ST_floor"] - 0.75) <= 2.0 * ft["ST_conf"].max()
+    lin = {"x1": {"distribution": "normal", "mean": 0.0, "sd": 2.0},
+           "x2": {"distribution": "uniform", "low": 0.0, "high": 3.0},
+           "x3": {"distribution": "triangular", "low": 0.0, "mode": 1.0, "high": 4.0}}
+    ft, _ = _sobol_via_pipeline(linear_model, lin, 1024, seed=3)
+    floor = SobolResult(pd.concat({"y [-]": ft}, names=["output"]), None, None, None).summary().loc["y [-]", "ST_floor"]
+    assert abs(floor - 0.5**2 * (13 / 18) / (4.0 + 4 * 9 / 12 + 0.25 * 13 / 18)) <= 2.0 * ft["ST_conf"].max()
+
+
 def test_sobol_indices_of_the_ishigami_function():
     a, b, pi = 7.0, 0.1, np.pi
     # Moments of x ~ U(-pi, pi): E x^4 = pi^4/5, E x^8 = pi^8/9; E sin^2 = 1/2, E sin^4 = 3/8.

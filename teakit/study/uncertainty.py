@@ -555,12 +555,20 @@ class SobolResult:
 
     def summary(self):
         """Per output: the parameter with the largest total index, sum of S1 (1 - sum S1 is the
-        share of variance due to interactions), and the widest interval.
+        share of variance due to interactions), the smallest total index, and the widest interval.
+
+        The smallest total index bounds the share of the output's variance that no parameter
+        explains: an output with a noise component independent of the inputs, such as an
+        optimal decision resolved only to the optimiser's tolerance, adds that share to every
+        total index (Jansen's estimator; Saltelli et al. 2010, Comput. Phys. Commun. 181, 259),
+        so ``ST_floor`` well above zero, or ``top_ST`` above 1, says the indices of that output
+        are partly noise.
 
         Returns
         -------
         pandas.DataFrame
-            Index output; columns ``top_parameter``, ``top_ST``, ``sum_S1``, ``max_conf``.
+            Index output; columns ``top_parameter``, ``top_ST``, ``sum_S1``, ``ST_floor``,
+            ``max_conf``.
         """
         import pandas as pd
 
@@ -569,6 +577,7 @@ class SobolResult:
             g = g.droplevel("output")
             top = g["ST"].idxmax()
             rows[o] = {"top_parameter": top, "top_ST": float(g.loc[top, "ST"]), "sum_S1": float(g["S1"].sum()),
+                       "ST_floor": float(g["ST"].min()),
                        "max_conf": float(max(g["S1_conf"].max(), g["ST_conf"].max()))}
         return pd.DataFrame.from_dict(rows, orient="index").rename_axis("output")
 
@@ -607,7 +616,8 @@ def sobol(study, n: int = 512, seed: int = 0, executor=None, outputs=None, *, ca
     Notes
     -----
     Sobol indices assume independent inputs: correlations are not applied here. Indices of the
-    optimal decisions include the effect of the optimiser's tolerance as noise.
+    optimal decisions include the effect of the optimiser's tolerance as noise: it adds to every
+    total index, and ``summary()["ST_floor"]`` (the smallest total index) bounds its share.
     """
     margs = uncertain_parameters(study, distributions, parameters)
     names = list(margs)
