@@ -294,6 +294,8 @@ def _check_warm(warm, B):
     missing = [k for k in shapes if k not in warm]
     if missing:
         raise InputError(f"warm must hold {', '.join(shapes)} (result.state of an earlier call); missing {', '.join(missing)}")
+    # Optional: K-values of the two-phase flashes (NaN where a flash was one phase).
+    shapes |= {k: (B, len(SPECIES)) for k in ("K_sep", "K_T2") if k in warm}
     out = {}
     for k, shape in shapes.items():
         try:
@@ -305,18 +307,9 @@ def _check_warm(warm, B):
         out[k] = a
     if not np.all(np.isfinite(out["scale"]) & (out["scale"] > 0)):
         raise InputError("warm['scale'] must be finite and > 0")
-    for k in ("K_sep", "K_T2"):  # optional: K-values of the flashes (NaN where one phase)
-        if k not in warm:
-            continue
-        try:
-            a = np.asarray(warm[k], dtype=float)
-        except (TypeError, ValueError):
-            raise InputError(f"warm[{k!r}] must be an array of numbers") from None
-        if a.shape != (B, len(SPECIES)):
-            raise InputError(f"warm[{k!r}] must have shape {(B, len(SPECIES))} for a batch of {B}, got {a.shape}")
-        if np.any(~np.isnan(a) & ~(np.isfinite(a) & (a > 0))):
+    for k in ("K_sep", "K_T2"):
+        if k in out and np.any(~np.isnan(out[k]) & ~(np.isfinite(out[k]) & (out[k] > 0))):
             raise InputError(f"warm[{k!r}] must hold K-values > 0 (NaN where a flash was one phase)")
-        out[k] = a
     return out
 
 
